@@ -1,0 +1,1 @@
+//! Benchmark fixtures of tieline (see `benches/`).

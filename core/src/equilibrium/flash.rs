@@ -1,0 +1,999 @@
+//! The isothermal–isobaric (PT) flash: the phases, amounts and compositions of least Gibbs
+//! energy at given T, p and feed.
+//!
+//! Method (M. L. Michelsen, "The isothermal flash problem. Part I. Stability" and "Part II.
+//! Phase-split calculation", Fluid Phase Equilib. 9 (1982) 1–19 and 21–40):
+//! 1. tangent-plane stability test of the feed from several trial phases;
+//! 2. for each distinct negative stationary point, a two-phase split started from
+//!    K_i = W_i/z_i: successive substitution on ln K with a Rachford–Rice solve per step,
+//!    accelerated by the dominant-eigenvalue method (Crowe & Nishio, AIChE J. 21 (1975) 528)
+//!    and accepted only when G falls, then Newton steps on G in the vapour amounts with a
+//!    Levenberg shift and a backtracking line search (quadratic convergence);
+//! 3. the split of least G is kept, and a certificate is computed: the minimum tangent-plane
+//!    distance from an independent stability test of a converged phase (≥ 0 up to round-off
+//!    when the result is the global minimum among two-phase states).
+//!
+//! A [`FlashContext`] keeps the workspaces and the previous solution: its warm start begins
+//! from the previous K-values and skips the feed stability test (simulators' time-stepping
+//! use), falling back to the cold path whenever the warm split collapses.
+
+use super::EquilibriumWork;
+use super::rachford_rice;
+use super::stability::{StabilityOptions, StabilityResult, stability_with};
+use crate::error::{Error, Result, check};
+use crate::model::{FluidModel, LnPhi, Need, PhaseKind, RootChoice, ln_phi};
+use crate::numerics::linalg::shifted_cholesky_solve;
+use serde::{Deserialize, Serialize};
+
+/// Options of the PT flash.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+#[serde(default)]
+pub struct FlashOptions {
+    /// Convergence tolerance on max_i |ln f_i^V − ln f_i^L| (dimensionless).
+    pub tolerance: f64,
+    /// Maximum successive-substitution iterations (all stages together).
+    pub max_ss_iterations: usize,
+    /// Maximum Newton iterations.
+    pub max_newton_iterations: usize,
+    /// Also report the tie-line extension (β outside [0, 1]) for single-phase feeds.
+    pub negative_flash: bool,
+    /// Compute the stability certificate of the result (an extra stability test).
+    pub certificate: bool,
+    /// Options of the stability tests.
+    pub stability: StabilityOptions,
+}
+
+impl Default for FlashOptions {
+    fn default() -> Self {
+        FlashOptions {
+            tolerance: 1e-10,
+            max_ss_iterations: 400,
+            max_newton_iterations: 40,
+            negative_flash: false,
+            certificate: true,
+            stability: StabilityOptions::default(),
+        }
+    }
+}
+
+impl FlashOptions {
+    fn validate(&self) -> Result<()> {
+        if !(self.tolerance > 0.0 && self.tolerance < 1e-2) {
+            return Err(Error::invalid(
+                "tolerance",
+                format!("{}; a value in (0, 1e-2) is required", self.tolerance),
+            ));
+        }
+        if !(self.stability.tolerance > 0.0 && self.stability.tolerance < 1e-2) {
+            return Err(Error::invalid(
+                "stability tolerance",
+                format!("{}; a value in (0, 1e-2) is required", self.stability.tolerance),
+            ));
+        }
+        Ok(())
+    }
+}
+
+/// One phase of a flash result.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, Default)]
+pub struct Phase {
+    /// Kind of phase (naming rule: see [`PhaseKind`]).
+    pub kind: Option<PhaseKind>,
+    /// Amount, mol.
+    pub amount: f64,
+    /// Phase fraction: amount of this phase over the total feed amount.
+    pub fraction: f64,
+    /// Mole fractions.
+    pub composition: Vec<f64>,
+    /// Molar volume, m3/mol.
+    pub molar_volume: f64,
+    /// Compressibility factor.
+    pub z: f64,
+    /// ln φ_i.
+    pub ln_phi: Vec<f64>,
+}
+
+impl Phase {
+    /// The phase as a [`PhaseState`](crate::model::PhaseState) at (T, p), for properties.
+    pub fn state(&self, t: f64, p: f64) -> crate::model::PhaseState {
+        crate::model::PhaseState {
+            t,
+            p,
+            n: self.composition.iter().map(|x| x * self.amount).collect(),
+            v: self.molar_volume * self.amount,
+            kind: self.kind.unwrap_or(PhaseKind::Vapor),
+        }
+    }
+}
+
+/// The extension of the tie line through a single-phase feed (negative flash): β outside
+/// [0, 1] with the equilibrium compositions of the extended tie line.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct TieLine {
+    /// Vapour-side fraction β (outside [0, 1] for a single-phase feed).
+    pub beta: f64,
+    /// Liquid-side composition.
+    pub x: Vec<f64>,
+    /// Vapour-side composition.
+    pub y: Vec<f64>,
+}
+
+/// How a flash reached its answer.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, Default)]
+pub struct Diagnostics {
+    /// Iterations of the stability test of the feed (0 on a warm start).
+    pub stability_iterations: usize,
+    /// Successive-substitution iterations.
+    pub ss_iterations: usize,
+    /// Accepted dominant-eigenvalue accelerations.
+    pub accelerations: usize,
+    /// Newton iterations.
+    pub newton_iterations: usize,
+    /// Final max_i |ln f_i^V − ln f_i^L| (0 for a single phase).
+    pub residual: f64,
+    /// Minimum tangent-plane distance from an independent stability test of the result
+    /// (dimensionless; `None` when switched off). ≥ 0 up to round-off for a certified minimum.
+    pub certificate: Option<f64>,
+    /// Iterations of the certificate's stability test.
+    pub certificate_iterations: usize,
+    /// Whether the warm start was used and kept.
+    pub warm_start: bool,
+    /// Number of two-phase splits tried (one per distinct negative stationary point).
+    pub splits_tried: usize,
+    /// Reduced Gibbs energy of the result, Σ_phases Σ_i n_i (ln x_i + ln φ_i) per mol of feed
+    /// (dimensionless; relative to the pure ideal gases at T and p).
+    pub gibbs: f64,
+}
+
+/// Result of a PT flash.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize, Default)]
+pub struct FlashResult {
+    /// Temperature, K.
+    pub temperature: f64,
+    /// Pressure, Pa.
+    pub pressure: f64,
+    /// Feed amounts, mol.
+    pub feed: Vec<f64>,
+    /// The phases present, vapour first, then liquids by increasing density.
+    pub phases: Vec<Phase>,
+    /// Tie-line extension for a single-phase feed, when requested with
+    /// [`FlashOptions::negative_flash`] and found.
+    pub tie_line: Option<TieLine>,
+    /// How the answer was reached.
+    pub diagnostics: Diagnostics,
+}
+
+impl FlashResult {
+    /// Vapour-phase fraction (0 if no vapour).
+    pub fn vapor_fraction(&self) -> f64 {
+        self.phases
+            .iter()
+            .filter(|p| p.kind == Some(PhaseKind::Vapor))
+            .map(|p| p.fraction)
+            .sum()
+    }
+
+    /// Mixture properties of the whole multiphase result (amount-weighted molar h, s, g, u, a,
+    /// v, cp; per mol of feed). The two-phase cp is the sum of the phase cps at frozen phase
+    /// amounts and compositions.
+    pub fn mixture_properties<M: FluidModel + ?Sized>(&self, model: &M) -> Result<MixtureProperties> {
+        let ntot: f64 = self.feed.iter().sum();
+        let mut m = MixtureProperties::default();
+        for ph in &self.phases {
+            let pr = ph.state(self.temperature, self.pressure).properties(model)?;
+            let f = ph.amount / ntot;
+            m.molar_volume += f * pr.molar_volume;
+            m.enthalpy += f * pr.enthalpy;
+            m.entropy += f * pr.entropy;
+            m.gibbs += f * pr.gibbs;
+            m.internal_energy += f * pr.internal_energy;
+            m.helmholtz += f * pr.helmholtz;
+            m.cp_frozen += f * pr.cp;
+            m.mass += ph.amount * pr.molar_mass;
+        }
+        m.mass_density = m.mass / (m.molar_volume * ntot);
+        Ok(m)
+    }
+}
+
+/// Amount-weighted properties of a multiphase result, per mol of feed (SI units).
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize, Default)]
+pub struct MixtureProperties {
+    /// Molar volume, m3/mol.
+    pub molar_volume: f64,
+    /// Molar enthalpy, J/mol.
+    pub enthalpy: f64,
+    /// Molar entropy, J/(mol K).
+    pub entropy: f64,
+    /// Molar Gibbs energy, J/mol.
+    pub gibbs: f64,
+    /// Molar internal energy, J/mol.
+    pub internal_energy: f64,
+    /// Molar Helmholtz energy, J/mol.
+    pub helmholtz: f64,
+    /// Frozen-composition isobaric heat capacity, J/(mol K).
+    pub cp_frozen: f64,
+    /// Total mass, kg.
+    pub mass: f64,
+    /// Overall mass density, kg/m3.
+    pub mass_density: f64,
+}
+
+/// State of a converged or candidate two-phase split (per mol of feed).
+#[derive(Debug, Clone, Default)]
+struct Split {
+    beta: f64,
+    omb: f64,
+    x: Vec<f64>,
+    y: Vec<f64>,
+    phi_x: LnPhi,
+    phi_y: LnPhi,
+    gibbs: f64,
+    residual: f64,
+}
+
+impl Split {
+    fn new(nc: usize) -> Self {
+        Split {
+            x: vec![0.0; nc],
+            y: vec![0.0; nc],
+            phi_x: LnPhi::new(nc),
+            phi_y: LnPhi::new(nc),
+            ..Default::default()
+        }
+    }
+
+    fn copy_from(&mut self, o: &Split) {
+        self.beta = o.beta;
+        self.omb = o.omb;
+        self.x.copy_from_slice(&o.x);
+        self.y.copy_from_slice(&o.y);
+        self.phi_x.clone_from(&o.phi_x);
+        self.phi_y.clone_from(&o.phi_y);
+        self.gibbs = o.gibbs;
+        self.residual = o.residual;
+    }
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum SplitOutcome {
+    Converged,
+    /// Converged or collapsed with β outside (0, 1), or to the trivial solution.
+    Collapsed,
+    NotConverged,
+}
+
+/// Reusable flash solver state: workspaces plus the previous solution for warm starts.
+/// Used by one thread at a time; create one per thread.
+#[derive(Debug, Clone, Default)]
+pub struct FlashContext {
+    ws: EquilibriumWork,
+    split: Split,
+    best: Split,
+    stab: StabilityResult,
+    cert: StabilityResult,
+    prev_lnk: Vec<f64>,
+    prev_two_phase: bool,
+    result: FlashResult,
+    nc: usize,
+    newton_v: Vec<f64>,
+    newton_v0: Vec<f64>,
+}
+
+impl FlashContext {
+    /// A context for models of `nc` components (resized automatically if used with another).
+    pub fn new(nc: usize) -> Self {
+        let mut c = FlashContext::default();
+        c.resize(nc);
+        c
+    }
+
+    fn resize(&mut self, nc: usize) {
+        if self.nc == nc && !self.prev_lnk.is_empty() {
+            return;
+        }
+        self.nc = nc;
+        self.ws = EquilibriumWork::new(nc);
+        self.split = Split::new(nc);
+        self.best = Split::new(nc);
+        self.prev_lnk = vec![0.0; nc];
+        self.prev_two_phase = false;
+        self.newton_v = vec![0.0; nc];
+        self.newton_v0 = vec![0.0; nc];
+        self.result.feed = vec![0.0; nc];
+        self.result.phases = Vec::with_capacity(2);
+    }
+
+    /// Forgets the previous solution, so the next call starts cold.
+    pub fn reset(&mut self) {
+        self.prev_two_phase = false;
+    }
+
+    /// The last result (valid after a successful call).
+    pub fn last(&self) -> &FlashResult {
+        &self.result
+    }
+
+    /// PT flash of feed amounts `n` (mol) at T (K) and p (Pa), warm-started from the
+    /// previous call of this context when that was a two-phase result of the same model size.
+    /// The result lives in the context (no allocation in steady state without a certificate).
+    pub fn flash<M: FluidModel + ?Sized>(
+        &mut self,
+        model: &M,
+        t: f64,
+        p: f64,
+        n: &[f64],
+        opts: &FlashOptions,
+    ) -> Result<&FlashResult> {
+        opts.validate()?;
+        check::temperature(t)?;
+        check::pressure(p)?;
+        let nc = model.num_components();
+        let ntot = check::amounts(n, nc)?;
+        self.resize(nc);
+        for i in 0..nc {
+            self.ws.z[i] = n[i] / ntot;
+        }
+        let mut diag = Diagnostics::default();
+        let mut found = false;
+        if self.prev_two_phase {
+            self.ws.lnk.copy_from_slice(&self.prev_lnk);
+            let out = self.two_phase(model, t, p, opts, true, &mut diag)?;
+            if out == SplitOutcome::Converged {
+                self.best.copy_from(&self.split);
+                diag.warm_start = true;
+                diag.splits_tried = 1;
+                found = true;
+            }
+        }
+        if !found {
+            found = self.cold(model, t, p, opts, &mut diag)?;
+        }
+        if found && opts.certificate {
+            self.certify(model, t, p, opts, &mut diag)?;
+        } else if !found {
+            diag.certificate = opts.certificate.then_some(self.stab.min_tpd);
+        }
+        self.finish(model, t, p, n, ntot, found, opts, diag)?;
+        Ok(&self.result)
+    }
+
+    /// Cold path: stability of the feed, then a split per negative stationary point.
+    fn cold<M: FluidModel + ?Sized>(
+        &mut self,
+        model: &M,
+        t: f64,
+        p: f64,
+        opts: &FlashOptions,
+        diag: &mut Diagnostics,
+    ) -> Result<bool> {
+        let nc = self.nc;
+        let z = self.ws.z.clone();
+        stability_with(model, t, p, &z, &opts.stability, &[], &mut self.ws, &mut self.stab)?;
+        diag.stability_iterations = self.stab.iterations;
+        if self.stab.stable {
+            return Ok(false);
+        }
+        let mut found = false;
+        let npts = self.stab.points.len();
+        let mut last_err: Option<Error> = None;
+        for k in 0..npts {
+            if self.stab.points[k].tpd >= -opts.stability.threshold {
+                continue;
+            }
+            for i in 0..nc {
+                let w = self.stab.points[k].amounts[i];
+                self.ws.lnk[i] = if self.ws.z[i] > 0.0 {
+                    (w / self.ws.z[i]).ln()
+                } else {
+                    0.0
+                };
+            }
+            diag.splits_tried += 1;
+            match self.two_phase(model, t, p, opts, false, diag) {
+                Ok(SplitOutcome::Converged) => {
+                    if !found || self.split.gibbs < self.best.gibbs - 1e-12 {
+                        self.best.copy_from(&self.split);
+                    }
+                    found = true;
+                }
+                Ok(_) => {}
+                Err(e) => last_err = Some(e),
+            }
+        }
+        if !found {
+            // The feed is unstable but no split converged: report, never guess.
+            return Err(last_err.unwrap_or_else(|| {
+                Error::not_converged(
+                    "two-phase split",
+                    vec![
+                        ("stability".into(), diag.stability_iterations),
+                        ("SS".into(), diag.ss_iterations),
+                        ("Newton".into(), diag.newton_iterations),
+                    ],
+                    self.split.residual,
+                    opts.tolerance,
+                )
+            }));
+        }
+        Ok(true)
+    }
+
+    /// Certificate: stability test of the liquid-side phase of the best split; if it reveals
+    /// a lower tangent plane, try once more from that stationary point.
+    fn certify<M: FluidModel + ?Sized>(
+        &mut self,
+        model: &M,
+        t: f64,
+        p: f64,
+        opts: &FlashOptions,
+        diag: &mut Diagnostics,
+    ) -> Result<()> {
+        let nc = self.nc;
+        for attempt in 0..2 {
+            let x = self.best.x.clone();
+            stability_with(model, t, p, &x, &opts.stability, &[], &mut self.ws, &mut self.cert)?;
+            diag.certificate_iterations += self.cert.iterations;
+            diag.certificate = Some(self.cert.min_tpd);
+            if self.cert.stable || attempt == 1 {
+                if !self.cert.stable {
+                    return Err(Error::NoSolution(format!(
+                        "at T = {t} K, p = {p} Pa the least-Gibbs state has more than two phases \
+                         (a third phase lowers G: tangent-plane distance {:.3e}); \
+                         the two-phase flash cannot represent it",
+                        self.cert.min_tpd
+                    )));
+                }
+                return Ok(());
+            }
+            // Retry: K from the new stationary point against the feed.
+            let w = self.cert.points[0].composition.clone();
+            let z = self.ws.z.clone();
+            ln_phi(
+                model,
+                t,
+                p,
+                &z,
+                RootChoice::Stable,
+                Need::VALUES,
+                &mut self.ws.fw,
+                &mut self.ws.phi_a,
+            )?;
+            ln_phi(
+                model,
+                t,
+                p,
+                &w,
+                RootChoice::Stable,
+                Need::VALUES,
+                &mut self.ws.fw,
+                &mut self.ws.phi_b,
+            )?;
+            for i in 0..nc {
+                self.ws.lnk[i] = self.ws.phi_a.ln_phi[i] - self.ws.phi_b.ln_phi[i];
+            }
+            diag.splits_tried += 1;
+            if let Ok(SplitOutcome::Converged) = self.two_phase(model, t, p, opts, false, diag)
+                && self.split.gibbs < self.best.gibbs
+            {
+                self.best.copy_from(&self.split);
+            }
+        }
+        Ok(())
+    }
+
+    /// Evaluates the split at the current ln K: Rachford–Rice (negative region allowed),
+    /// compositions, ln φ of both phases, G, and the residual. Returns `false` when the
+    /// Rachford–Rice equation has no root.
+    fn eval_split<M: FluidModel + ?Sized>(&mut self, model: &M, t: f64, p: f64) -> Result<bool> {
+        let nc = self.nc;
+        let ws = &mut self.ws;
+        for i in 0..nc {
+            ws.k[i] = ws.lnk[i].exp();
+        }
+        let Ok(rr) = rachford_rice::solve(&ws.z, &ws.k, true) else {
+            return Ok(false);
+        };
+        let s = &mut self.split;
+        s.beta = rr.beta;
+        s.omb = rr.one_minus_beta;
+        rachford_rice::compositions(&ws.z, &ws.k, &rr, &mut s.x, &mut s.y);
+        normalise(&mut s.x);
+        normalise(&mut s.y);
+        ln_phi(
+            model,
+            t,
+            p,
+            &s.x,
+            RootChoice::Stable,
+            Need::VALUES,
+            &mut ws.fw,
+            &mut s.phi_x,
+        )?;
+        ln_phi(
+            model,
+            t,
+            p,
+            &s.y,
+            RootChoice::Stable,
+            Need::VALUES,
+            &mut ws.fw,
+            &mut s.phi_y,
+        )?;
+        s.gibbs = gibbs(&ws.z, s);
+        let mut err = 0.0f64;
+        for i in 0..nc {
+            if ws.z[i] > 0.0 {
+                let r = ws.lnk[i] + s.phi_y.ln_phi[i] - s.phi_x.ln_phi[i];
+                err = err.max(r.abs());
+                ws.g[i] = s.phi_x.ln_phi[i] - s.phi_y.ln_phi[i];
+            } else {
+                ws.g[i] = 0.0;
+            }
+        }
+        s.residual = err;
+        let _ = rr.region;
+        Ok(true)
+    }
+
+    /// Two-phase split from `ws.lnk`. On `Converged`, `self.split` holds the split and
+    /// `prev_lnk` the K-values.
+    fn two_phase<M: FluidModel + ?Sized>(
+        &mut self,
+        model: &M,
+        t: f64,
+        p: f64,
+        opts: &FlashOptions,
+        warm: bool,
+        diag: &mut Diagnostics,
+    ) -> Result<SplitOutcome> {
+        let nc = self.nc;
+        let mut ss_budget = if warm { 3 } else { opts.max_ss_iterations };
+        let mut ss_done = 0usize;
+        let mut last_g = f64::INFINITY;
+        let mut last_err = f64::INFINITY;
+        let mut newton_tried = false;
+        loop {
+            if !self.eval_split(model, t, p)? {
+                return Ok(SplitOutcome::Collapsed);
+            }
+            let err = self.split.residual;
+            if err < opts.tolerance {
+                return self.accept(opts);
+            }
+            let trivial = self
+                .ws
+                .lnk
+                .iter()
+                .zip(&self.ws.z)
+                .filter(|(_, z)| **z > 0.0)
+                .all(|(l, _)| l.abs() < 1e-4);
+            if trivial {
+                return Ok(SplitOutcome::Collapsed);
+            }
+            // Switch to Newton once SS has done its cheap work, or on a warm start.
+            let slow = ss_done >= 4 && err > 0.5 * last_err;
+            if !newton_tried && (warm || err < 1e-4 || slow || ss_done >= 25) {
+                newton_tried = true;
+                match self.newton(model, t, p, opts, diag)? {
+                    SplitOutcome::Converged => return self.accept(opts),
+                    SplitOutcome::Collapsed => return Ok(SplitOutcome::Collapsed),
+                    SplitOutcome::NotConverged => {
+                        // Continue with (accelerated) successive substitution.
+                        ss_budget = opts.max_ss_iterations;
+                        if !self.eval_split(model, t, p)? {
+                            return Ok(SplitOutcome::Collapsed);
+                        }
+                    }
+                }
+            }
+            if ss_done >= ss_budget {
+                if warm {
+                    return Ok(SplitOutcome::NotConverged);
+                }
+                return Err(Error::not_converged(
+                    "two-phase split",
+                    vec![
+                        ("SS".into(), diag.ss_iterations),
+                        ("Newton".into(), diag.newton_iterations),
+                    ],
+                    self.split.residual,
+                    opts.tolerance,
+                ));
+            }
+            // Successive substitution: ln K ← ln φ^x − ln φ^y (held in ws.g).
+            ss_done += 1;
+            diag.ss_iterations += 1;
+            let ws = &mut self.ws;
+            // History of differences for the dominant-eigenvalue extrapolation.
+            ws.hist.swap(0, 1);
+            for i in 0..nc {
+                ws.hist[1][i] = ws.g[i] - ws.lnk[i];
+                ws.lnk[i] = ws.g[i];
+            }
+            if ss_done.is_multiple_of(5) {
+                let (mut num, mut den) = (0.0, 0.0);
+                for i in 0..nc {
+                    num += ws.hist[1][i] * ws.hist[1][i];
+                    den += ws.hist[0][i] * ws.hist[1][i];
+                }
+                let lambda = num / den;
+                if lambda.is_finite() && lambda > 0.0 && lambda < 0.99 {
+                    let fac = lambda / (1.0 - lambda);
+                    for i in 0..nc {
+                        ws.w_old[i] = ws.lnk[i];
+                        ws.lnk[i] += fac * ws.hist[1][i];
+                    }
+                    let g_before = self.split.gibbs.min(last_g);
+                    if self.eval_split(model, t, p)? && self.split.gibbs < g_before {
+                        diag.accelerations += 1;
+                        // Keep the extrapolated ln K; the next loop re-evaluates it.
+                    } else {
+                        let ws = &mut self.ws;
+                        ws.lnk.copy_from_slice(&ws.w_old);
+                    }
+                }
+            }
+            last_g = self.split.gibbs;
+            last_err = err;
+        }
+    }
+
+    fn accept(&mut self, _opts: &FlashOptions) -> Result<SplitOutcome> {
+        let s = &self.split;
+        let trivial = s.x.iter().zip(&s.y).all(|(a, b)| (a - b).abs() < 1e-9);
+        if !(s.beta > 0.0 && s.omb > 0.0) || trivial {
+            return Ok(SplitOutcome::Collapsed);
+        }
+        self.prev_lnk.copy_from_slice(&self.ws.lnk);
+        Ok(SplitOutcome::Converged)
+    }
+
+    /// Newton iterations on G in the y-phase amounts v_i = β y_i (per mol of feed) from the
+    /// current split.
+    fn newton<M: FluidModel + ?Sized>(
+        &mut self,
+        model: &M,
+        t: f64,
+        p: f64,
+        opts: &FlashOptions,
+        diag: &mut Diagnostics,
+    ) -> Result<SplitOutcome> {
+        let nc = self.nc;
+        if !(self.split.beta > 0.0 && self.split.omb > 0.0) {
+            return Ok(SplitOutcome::NotConverged);
+        }
+        for i in 0..nc {
+            self.newton_v[i] = self.split.beta * self.split.y[i];
+        }
+        let mut iters = 0;
+        loop {
+            if iters >= opts.max_newton_iterations {
+                return Ok(SplitOutcome::NotConverged);
+            }
+            iters += 1;
+            diag.newton_iterations += 1;
+            // Evaluate both phases with composition derivatives at the current v.
+            let (beta, omb) = {
+                let ws = &mut self.ws;
+                let s = &mut self.split;
+                let beta: f64 = self.newton_v.iter().sum();
+                let omb: f64 = ws.z.iter().zip(&self.newton_v).map(|(z, v)| z - v).sum();
+                for i in 0..nc {
+                    s.y[i] = self.newton_v[i] / beta;
+                    s.x[i] = (ws.z[i] - self.newton_v[i]) / omb;
+                }
+                ln_phi(
+                    model,
+                    t,
+                    p,
+                    &s.x,
+                    RootChoice::Stable,
+                    Need::COMPOSITION,
+                    &mut ws.fw,
+                    &mut s.phi_x,
+                )?;
+                ln_phi(
+                    model,
+                    t,
+                    p,
+                    &s.y,
+                    RootChoice::Stable,
+                    Need::COMPOSITION,
+                    &mut ws.fw,
+                    &mut s.phi_y,
+                )?;
+                s.beta = beta;
+                s.omb = omb;
+                s.gibbs = gibbs(&ws.z, s);
+                (beta, omb)
+            };
+            let ws = &mut self.ws;
+            let s = &mut self.split;
+            let mut err = 0.0f64;
+            for i in 0..nc {
+                if ws.z[i] > 0.0 {
+                    let gi = (s.y[i].ln() + s.phi_y.ln_phi[i]) - (s.x[i].ln() + s.phi_x.ln_phi[i]);
+                    ws.rhs[i] = -gi;
+                    err = err.max(gi.abs());
+                    ws.lnk[i] = s.phi_x.ln_phi[i] - s.phi_y.ln_phi[i];
+                } else {
+                    ws.rhs[i] = 0.0;
+                }
+            }
+            s.residual = err;
+            if err < opts.tolerance {
+                return Ok(SplitOutcome::Converged);
+            }
+            if !err.is_finite() {
+                return Ok(SplitOutcome::NotConverged);
+            }
+            for i in 0..nc {
+                for j in 0..nc {
+                    let h = if ws.z[i] > 0.0 && ws.z[j] > 0.0 {
+                        let mut h =
+                            s.phi_y.dn[i * nc + j] / beta + s.phi_x.dn[i * nc + j] / omb - 1.0 / beta - 1.0 / omb;
+                        if i == j {
+                            h += 1.0 / self.newton_v[i] + 1.0 / (ws.z[i] - self.newton_v[i]);
+                        }
+                        h
+                    } else if i == j {
+                        1.0
+                    } else {
+                        0.0
+                    };
+                    ws.hess[i * nc + j] = h;
+                }
+            }
+            ws.step.copy_from_slice(&ws.rhs);
+            if shifted_cholesky_solve(&ws.hess, nc, &mut ws.step, &mut ws.chol, 0.0).is_none() {
+                return Ok(SplitOutcome::NotConverged);
+            }
+            // Keep 0 < v_i < z_i (fraction to the boundary 0.9), then backtrack on G.
+            let mut alpha: f64 = 1.0;
+            for i in 0..nc {
+                if ws.z[i] <= 0.0 {
+                    continue;
+                }
+                let (v, dv) = (self.newton_v[i], ws.step[i]);
+                if v + dv <= 0.0 {
+                    alpha = alpha.min(0.9 * v / -dv);
+                } else if v + dv >= ws.z[i] {
+                    alpha = alpha.min(0.9 * (ws.z[i] - v) / dv);
+                }
+            }
+            let g0 = s.gibbs;
+            self.newton_v0.copy_from_slice(&self.newton_v);
+            let mut accepted = false;
+            for _ in 0..12 {
+                for i in 0..nc {
+                    self.newton_v[i] = self.newton_v0[i] + alpha * self.ws.step[i];
+                }
+                let beta: f64 = self.newton_v.iter().sum();
+                let omb: f64 = self.ws.z.iter().zip(&self.newton_v).map(|(z, v)| z - v).sum();
+                if !(beta > 0.0 && omb > 0.0) {
+                    alpha *= 0.5;
+                    continue;
+                }
+                let s = &mut self.split;
+                for i in 0..nc {
+                    s.y[i] = self.newton_v[i] / beta;
+                    s.x[i] = (self.ws.z[i] - self.newton_v[i]) / omb;
+                }
+                s.beta = beta;
+                s.omb = omb;
+                ln_phi(
+                    model,
+                    t,
+                    p,
+                    &s.x,
+                    RootChoice::Stable,
+                    Need::VALUES,
+                    &mut self.ws.fw,
+                    &mut s.phi_x,
+                )?;
+                ln_phi(
+                    model,
+                    t,
+                    p,
+                    &s.y,
+                    RootChoice::Stable,
+                    Need::VALUES,
+                    &mut self.ws.fw,
+                    &mut s.phi_y,
+                )?;
+                let g1 = gibbs(&self.ws.z, s);
+                // Near convergence G changes by round-off only: accept any step there.
+                if g1 <= g0 + 1e-13 * g0.abs().max(1.0) || err < 1e-7 {
+                    accepted = true;
+                    break;
+                }
+                alpha *= 0.5;
+            }
+            if !accepted {
+                self.newton_v.copy_from_slice(&self.newton_v0);
+                return Ok(SplitOutcome::NotConverged);
+            }
+            let tiny = self
+                .newton_v
+                .iter()
+                .zip(&self.ws.z)
+                .any(|(v, z)| *z > 0.0 && (*v <= 0.0 || *v >= *z));
+            if tiny {
+                return Ok(SplitOutcome::Collapsed);
+            }
+        }
+    }
+
+    /// Writes the result into `self.result`, reusing its storage.
+    fn finish<M: FluidModel + ?Sized>(
+        &mut self,
+        model: &M,
+        t: f64,
+        p: f64,
+        n: &[f64],
+        ntot: f64,
+        two: bool,
+        opts: &FlashOptions,
+        mut diag: Diagnostics,
+    ) -> Result<()> {
+        let nc = self.nc;
+        let r = &mut self.result;
+        r.temperature = t;
+        r.pressure = p;
+        r.feed.clear();
+        r.feed.extend_from_slice(n);
+        r.tie_line = None;
+        let count = if two { 2 } else { 1 };
+        r.phases.truncate(count);
+        while r.phases.len() < count {
+            r.phases.push(Phase {
+                composition: vec![0.0; nc],
+                ln_phi: vec![0.0; nc],
+                ..Default::default()
+            });
+        }
+        if two {
+            let s = &self.best;
+            diag.residual = s.residual;
+            diag.gibbs = s.gibbs;
+            // Order: lighter phase first.
+            let y_first = s.phi_y.v >= s.phi_x.v;
+            let parts = [(s.beta, &s.y, &s.phi_y), (s.omb, &s.x, &s.phi_x)];
+            let (a, b) = if y_first {
+                (parts[0], parts[1])
+            } else {
+                (parts[1], parts[0])
+            };
+            let kinds = match (a.2.liquid_like, b.2.liquid_like) {
+                (true, true) => [PhaseKind::Liquid2, PhaseKind::Liquid],
+                _ => [PhaseKind::Vapor, PhaseKind::Liquid],
+            };
+            for (k, (frac, comp, phi)) in [a, b].into_iter().enumerate() {
+                let ph = &mut r.phases[k];
+                ph.kind = Some(kinds[k]);
+                ph.fraction = frac;
+                ph.amount = frac * ntot;
+                ph.composition.copy_from_slice(comp);
+                ph.ln_phi.copy_from_slice(&phi.ln_phi);
+                ph.molar_volume = phi.v;
+                ph.z = phi.z;
+            }
+            self.prev_two_phase = true;
+        } else {
+            let ws = &mut self.ws;
+            let z = &ws.z;
+            ln_phi(
+                model,
+                t,
+                p,
+                z,
+                RootChoice::Stable,
+                Need::VALUES,
+                &mut ws.fw,
+                &mut ws.phi_a,
+            )?;
+            let ph = &mut r.phases[0];
+            ph.kind = Some(if ws.phi_a.liquid_like {
+                PhaseKind::Liquid
+            } else {
+                PhaseKind::Vapor
+            });
+            ph.fraction = 1.0;
+            ph.amount = ntot;
+            ph.composition.copy_from_slice(z);
+            ph.ln_phi.copy_from_slice(&ws.phi_a.ln_phi);
+            ph.molar_volume = ws.phi_a.v;
+            ph.z = ws.phi_a.z;
+            diag.residual = 0.0;
+            diag.gibbs = z
+                .iter()
+                .zip(&ws.phi_a.ln_phi)
+                .filter(|(z, _)| **z > 0.0)
+                .map(|(z, l)| z * (z.ln() + l))
+                .sum();
+            self.prev_two_phase = false;
+        }
+        r.diagnostics = diag;
+        if !two && opts.negative_flash {
+            let tl = self.tie_line_extension(model, t, p, opts)?;
+            self.result.tie_line = tl;
+        }
+        Ok(())
+    }
+
+    /// Negative flash from Wilson K-values for a single-phase feed.
+    fn tie_line_extension<M: FluidModel + ?Sized>(
+        &mut self,
+        model: &M,
+        t: f64,
+        p: f64,
+        opts: &FlashOptions,
+    ) -> Result<Option<TieLine>> {
+        let nc = self.nc;
+        super::stability::wilson_ln_k(model, t, p, &mut self.ws.lnk);
+        for _ in 0..opts.max_ss_iterations {
+            if !self.eval_split(model, t, p)? {
+                return Ok(None);
+            }
+            if self.split.residual < opts.tolerance {
+                let s = &self.split;
+                if s.x.iter().zip(&s.y).all(|(a, b)| (a - b).abs() < 1e-8) {
+                    return Ok(None);
+                }
+                return Ok(Some(TieLine {
+                    beta: s.beta,
+                    x: s.x.clone(),
+                    y: s.y.clone(),
+                }));
+            }
+            if self.ws.lnk.iter().all(|l| l.abs() < 1e-4) {
+                return Ok(None);
+            }
+            for i in 0..nc {
+                self.ws.lnk[i] = self.ws.g[i];
+            }
+        }
+        Ok(None)
+    }
+}
+
+fn normalise(v: &mut [f64]) {
+    let s: f64 = v.iter().sum();
+    if s > 0.0 {
+        for x in v.iter_mut() {
+            *x /= s;
+        }
+    }
+}
+
+/// Reduced Gibbs energy of a split per mol of feed: β Σ y (ln y + ln φ^y) + (1−β) Σ x (ln x + ln φ^x).
+fn gibbs(z: &[f64], s: &Split) -> f64 {
+    let mut g = 0.0;
+    for i in 0..z.len() {
+        if z[i] > 0.0 {
+            if s.y[i] > 0.0 {
+                g += s.beta * s.y[i] * (s.y[i].ln() + s.phi_y.ln_phi[i]);
+            }
+            if s.x[i] > 0.0 {
+                g += s.omb * s.x[i] * (s.x[i].ln() + s.phi_x.ln_phi[i]);
+            }
+        }
+    }
+    g
+}
+
+/// One-shot PT flash of feed amounts `n` (mol) at T (K) and p (Pa).
+///
+/// For repeated calls (simulators, sweeps) use a [`FlashContext`], which warm-starts and
+/// reuses its storage.
+pub fn flash_pt<M: FluidModel + ?Sized>(
+    model: &M,
+    t: f64,
+    p: f64,
+    n: &[f64],
+    opts: &FlashOptions,
+) -> Result<FlashResult> {
+    let mut ctx = FlashContext::new(model.num_components());
+    ctx.flash(model, t, p, n, opts).cloned()
+}

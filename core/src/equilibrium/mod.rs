@@ -1,0 +1,90 @@
+//! Equilibrium solvers: phase stability, the two-phase PT flash, saturation points of pure
+//! components, bubble and dew points of mixtures.
+//!
+//! Every solver works for any [`FluidModel`](crate::model::FluidModel) and returns a typed
+//! error rather than a doubtful answer: non-convergence comes back as
+//! [`Error::NotConverged`](crate::Error::NotConverged) with the iterations and the residual
+//! reached.
+
+pub mod flash;
+pub mod rachford_rice;
+pub mod saturation;
+pub mod stability;
+
+pub use flash::{Diagnostics, FlashContext, FlashOptions, FlashResult, Phase, TieLine, flash_pt};
+pub use saturation::{
+    BubbleDew, PointKind, SaturationOptions, SaturationPoint, bubble_pressure, bubble_temperature, dew_pressure,
+    dew_temperature, saturation_pressure, saturation_temperature,
+};
+pub use stability::{StabilityOptions, StabilityResult, StationaryPoint, TrialSet, stability};
+
+use crate::model::{FugacityWork, LnPhi};
+
+/// Scratch storage shared by the equilibrium solvers, sized once per component count, so
+/// that repeated calls allocate nothing.
+#[derive(Debug, Clone, Default)]
+pub struct EquilibriumWork {
+    pub(crate) fw: FugacityWork,
+    pub(crate) phi_a: LnPhi,
+    pub(crate) phi_b: LnPhi,
+    pub(crate) z: Vec<f64>,
+    pub(crate) d: Vec<f64>,
+    pub(crate) w: Vec<f64>,
+    pub(crate) w_old: Vec<f64>,
+    pub(crate) x: Vec<f64>,
+    pub(crate) y: Vec<f64>,
+    pub(crate) g: Vec<f64>,
+    pub(crate) lnk: Vec<f64>,
+    pub(crate) k: Vec<f64>,
+    pub(crate) rhs: Vec<f64>,
+    pub(crate) step: Vec<f64>,
+    pub(crate) hess: Vec<f64>,
+    pub(crate) chol: Vec<f64>,
+    pub(crate) hist: [Vec<f64>; 3],
+    pub(crate) trial_kinds: Vec<(stability::Trial, usize)>,
+    nc: usize,
+}
+
+impl EquilibriumWork {
+    /// Scratch for `nc` components.
+    pub fn new(nc: usize) -> Self {
+        let mut w = EquilibriumWork::default();
+        w.resize(nc);
+        w
+    }
+
+    pub(crate) fn resize(&mut self, nc: usize) {
+        if self.nc == nc && !self.z.is_empty() {
+            return;
+        }
+        self.nc = nc;
+        self.fw = FugacityWork::new(nc);
+        self.phi_a = LnPhi::new(nc);
+        self.phi_b = LnPhi::new(nc);
+        for v in [
+            &mut self.z,
+            &mut self.d,
+            &mut self.w,
+            &mut self.w_old,
+            &mut self.x,
+            &mut self.y,
+            &mut self.g,
+            &mut self.lnk,
+            &mut self.k,
+            &mut self.rhs,
+            &mut self.step,
+        ] {
+            v.clear();
+            v.resize(nc, 0.0);
+        }
+        for h in self.hist.iter_mut() {
+            h.clear();
+            h.resize(nc, 0.0);
+        }
+        self.hess.clear();
+        self.hess.resize(nc * nc, 0.0);
+        self.chol.clear();
+        self.chol.resize(nc * nc, 0.0);
+        self.trial_kinds.reserve(nc + 4);
+    }
+}

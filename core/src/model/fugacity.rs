@@ -1,0 +1,225 @@
+//! Fugacity coefficients and their derivatives at (T, p, n), derived from any
+//! [`FluidModel`]'s residual Helmholtz energy (Michelsen & Mollerup 2007, ch. 2):
+//!
+//! p = nRT/V − RT F_V,  ln φ_i = F_{n_i} − ln Z,
+//! (∂ln φ_i/∂n_j)_{T,p} = F_{n_i n_j} + 1/n + (∂p/∂n_i)(∂p/∂n_j)/(RT ∂p/∂V),
+//! (∂ln φ_i/∂T)_{p,n} = F_{n_i T} + 1/T − v̄_i (∂p/∂T)_V/(RT),
+//! (∂ln φ_i/∂p)_{T,n} = v̄_i/(RT) − 1/p,  v̄_i = −(∂p/∂n_i)/(∂p/∂V).
+
+use super::{FluidModel, HelmholtzDerivs};
+use crate::error::{Error, Result, check};
+use crate::substance::R;
+
+/// Which derivatives to compute beyond the values.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub struct Need {
+    /// Composition derivatives (∂ln φ_i/∂n_j at fixed T, p; ∂²F/∂n_i∂n_j).
+    pub composition: bool,
+    /// Temperature derivatives (∂ln φ_i/∂T, and the F_T family needed for energies).
+    pub temperature: bool,
+    /// Pressure derivatives ∂ln φ_i/∂p.
+    pub pressure: bool,
+}
+
+impl Need {
+    /// Values only (ln φ, Z, V).
+    pub const VALUES: Need = Need {
+        composition: false,
+        temperature: false,
+        pressure: false,
+    };
+    /// Values and composition derivatives.
+    pub const COMPOSITION: Need = Need {
+        composition: true,
+        temperature: false,
+        pressure: false,
+    };
+    /// Everything.
+    pub const ALL: Need = Need {
+        composition: true,
+        temperature: true,
+        pressure: true,
+    };
+}
+
+/// Which volume root to evaluate a phase on.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, serde::Serialize, serde::Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum RootChoice {
+    /// The root of least Gibbs energy (the stable one when there are two).
+    Stable,
+    /// The smallest volume root (liquid-like); the only root if there is one.
+    Liquid,
+    /// The largest volume root (vapour-like); the only root if there is one.
+    Vapor,
+}
+
+/// Output of [`ln_phi`]: a phase evaluated at (T, p, n). Vectors are reused between calls.
+#[derive(Debug, Clone, Default)]
+pub struct LnPhi {
+    /// Total volume, m3.
+    pub v: f64,
+    /// Compressibility factor Z = pV/(nRT).
+    pub z: f64,
+    /// ln φ_i.
+    pub ln_phi: Vec<f64>,
+    /// (∂ln φ_i/∂n_j)_{T,p}, 1/mol, row-major (with [`Need::composition`]).
+    pub dn: Vec<f64>,
+    /// (∂ln φ_i/∂T)_{p,n}, 1/K (with [`Need::temperature`]).
+    pub dt: Vec<f64>,
+    /// (∂ln φ_i/∂p)_{T,n}, 1/Pa (with [`Need::pressure`]).
+    pub dp: Vec<f64>,
+    /// Partial molar volumes v̄_i, m3/mol.
+    pub vbar: Vec<f64>,
+    /// G^r/(RT) = Σ n_i ln φ_i (mol).
+    pub g_res: f64,
+    /// Whether the root taken had a competitor (two roots existed).
+    pub two_roots: bool,
+    /// Whether the phase is liquid-like by the model's rule.
+    pub liquid_like: bool,
+}
+
+impl LnPhi {
+    /// Storage for `nc` components.
+    pub fn new(nc: usize) -> Self {
+        let mut s = LnPhi::default();
+        s.resize(nc);
+        s
+    }
+
+    fn resize(&mut self, nc: usize) {
+        if self.ln_phi.len() != nc {
+            self.ln_phi.resize(nc, 0.0);
+            self.dn.resize(nc * nc, 0.0);
+            self.dt.resize(nc, 0.0);
+            self.dp.resize(nc, 0.0);
+            self.vbar.resize(nc, 0.0);
+        }
+    }
+}
+
+/// Reusable scratch for [`ln_phi`].
+#[derive(Debug, Clone, Default)]
+pub struct FugacityWork {
+    /// Helmholtz derivatives storage.
+    pub derivs: HelmholtzDerivs,
+}
+
+impl FugacityWork {
+    /// Scratch for `nc` components.
+    pub fn new(nc: usize) -> Self {
+        FugacityWork {
+            derivs: HelmholtzDerivs::new(nc),
+        }
+    }
+}
+
+/// Evaluates ln φ (and the requested derivatives) of a phase at (T [K], p [Pa], n [mol]) on
+/// the chosen root. Allocation-free once `work` and `out` have been sized.
+pub fn ln_phi<M: FluidModel + ?Sized>(
+    model: &M,
+    t: f64,
+    p: f64,
+    n: &[f64],
+    root: RootChoice,
+    need: Need,
+    work: &mut FugacityWork,
+    out: &mut LnPhi,
+) -> Result<()> {
+    check::temperature(t)?;
+    check::pressure(p)?;
+    let nc = model.num_components();
+    let ntot = check::amounts(n, nc)?;
+    out.resize(nc);
+    let roots = model.volume_roots(t, p, n, &mut work.derivs)?;
+    let v = match (root, roots.count) {
+        (_, 1) => roots.v[0],
+        (RootChoice::Liquid, _) => roots.v[0],
+        (RootChoice::Vapor, _) => roots.v[1],
+        (RootChoice::Stable, _) => {
+            // Least G^r/RT = F + (Z − 1) n − n ln Z over the roots.
+            let mut best = (f64::INFINITY, roots.v[0]);
+            for &v in roots.as_slice() {
+                model.residual(t, v, n, Need::VALUES, &mut work.derivs)?;
+                let z = p * v / (ntot * R * t);
+                let g = work.derivs.f + (z - 1.0) * ntot - ntot * z.ln();
+                if g < best.0 {
+                    best = (g, v);
+                }
+            }
+            best.1
+        }
+    };
+    out.two_roots = roots.count == 2;
+    evaluate_at_volume(model, t, p, v, n, ntot, need, work, out)
+}
+
+/// Evaluates the phase at a known volume `v` (m3) that solves p(T, v, n) = p.
+pub(crate) fn evaluate_at_volume<M: FluidModel + ?Sized>(
+    model: &M,
+    t: f64,
+    p: f64,
+    v: f64,
+    n: &[f64],
+    ntot: f64,
+    need: Need,
+    work: &mut FugacityWork,
+    out: &mut LnPhi,
+) -> Result<()> {
+    let nc = n.len();
+    let mneed = super::Need {
+        composition: need.composition,
+        temperature: need.temperature,
+        pressure: false,
+    };
+    model.residual(t, v, n, mneed, &mut work.derivs)?;
+    let d = &work.derivs;
+    let rt = R * t;
+    let z = p * v / (ntot * rt);
+    if !(z > 0.0) || !z.is_finite() {
+        return Err(Error::invalid(
+            "state",
+            format!("compressibility factor {z} at T = {t} K, p = {p} Pa"),
+        ));
+    }
+    let lnz = z.ln();
+    let p_v = -rt * d.f_vv - ntot * rt / (v * v);
+    let mut g = 0.0;
+    for i in 0..nc {
+        out.ln_phi[i] = d.f_n[i] - lnz;
+        g += n[i] * out.ln_phi[i];
+        let p_i = rt / v - rt * d.f_nv[i];
+        out.vbar[i] = -p_i / p_v;
+    }
+    if need.composition {
+        for i in 0..nc {
+            let p_i = rt / v - rt * d.f_nv[i];
+            for j in 0..nc {
+                let p_j = rt / v - rt * d.f_nv[j];
+                out.dn[i * nc + j] = d.f_nn[i * nc + j] + 1.0 / ntot + p_i * p_j / (rt * p_v);
+            }
+        }
+    }
+    if need.temperature {
+        let p_t = p / t - rt * d.f_tv;
+        for i in 0..nc {
+            out.dt[i] = d.f_nt[i] + 1.0 / t - out.vbar[i] * p_t / rt;
+        }
+    }
+    if need.pressure {
+        for i in 0..nc {
+            out.dp[i] = out.vbar[i] / rt - 1.0 / p;
+        }
+    }
+    out.v = v;
+    out.z = z;
+    out.g_res = g;
+    out.liquid_like = model.is_liquid_like(t, v, n);
+    if !g.is_finite() {
+        return Err(Error::invalid(
+            "state",
+            format!("non-finite fugacity coefficients at T = {t} K, p = {p} Pa"),
+        ));
+    }
+    Ok(())
+}

@@ -1,0 +1,233 @@
+//! Phase states and their thermodynamic properties.
+
+use super::FluidModel;
+use super::fugacity::{FugacityWork, LnPhi, Need, RootChoice, evaluate_at_volume, ln_phi};
+use crate::error::{Error, Result, check};
+use crate::substance::{P_STANDARD, R};
+use serde::{Deserialize, Serialize};
+
+/// The kind of a phase.
+///
+/// Naming rule: a fluid phase is `Liquid` when the model calls its volume liquid-like
+/// ([`FluidModel::is_liquid_like`]; for cubic equations, molar volume below the equation's own
+/// v_c/b ratio times the mixture co-volume) and `Vapor` otherwise. In a two-phase fluid
+/// result the lighter phase is named `Vapor` and the denser `Liquid` unless both are
+/// liquid-like (a liquid–liquid split: `Liquid` and `Liquid2`, the denser first) or both are
+/// vapour-like (`Vapor` and `Liquid`, by density, since two gases cannot split).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+#[non_exhaustive]
+pub enum PhaseKind {
+    /// A vapour (or supercritical, gas-like) phase.
+    Vapor,
+    /// A liquid (or dense, liquid-like) phase.
+    Liquid,
+    /// A second liquid phase (the lighter of two liquids).
+    Liquid2,
+    /// A solid phase.
+    Solid,
+}
+
+impl std::fmt::Display for PhaseKind {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(match self {
+            PhaseKind::Vapor => "vapor",
+            PhaseKind::Liquid => "liquid",
+            PhaseKind::Liquid2 => "liquid2",
+            PhaseKind::Solid => "solid",
+        })
+    }
+}
+
+/// A fluid phase at (T, p, n) on a definite volume root. Plain data: properties are computed
+/// on request from the model that produced it.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct PhaseState {
+    /// Temperature, K.
+    pub t: f64,
+    /// Pressure, Pa.
+    pub p: f64,
+    /// Amounts, mol.
+    pub n: Vec<f64>,
+    /// Total volume, m3.
+    pub v: f64,
+    /// The kind of phase (by the rule of [`PhaseKind`]).
+    pub kind: PhaseKind,
+}
+
+/// Thermodynamic properties of a phase (molar quantities per mol of phase; SI units).
+///
+/// Energies are absolute in the reference state of [`crate::substance`] (ideal gases at
+/// 298.15 K, 1e5 Pa with h = ΔfH°, g = ΔfG°).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Properties {
+    /// Temperature, K.
+    pub temperature: f64,
+    /// Pressure, Pa.
+    pub pressure: f64,
+    /// Mole fractions.
+    pub composition: Vec<f64>,
+    /// Molar volume, m3/mol.
+    pub molar_volume: f64,
+    /// Molar density, mol/m3.
+    pub molar_density: f64,
+    /// Mass density, kg/m3.
+    pub mass_density: f64,
+    /// Mean molar mass, kg/mol.
+    pub molar_mass: f64,
+    /// Compressibility factor Z = pv/(RT).
+    pub z: f64,
+    /// ln φ_i.
+    pub ln_phi: Vec<f64>,
+    /// Fugacities f_i = x_i φ_i p, Pa.
+    pub fugacity: Vec<f64>,
+    /// Molar enthalpy, J/mol.
+    pub enthalpy: f64,
+    /// Molar entropy, J/(mol K).
+    pub entropy: f64,
+    /// Molar Gibbs energy, J/mol.
+    pub gibbs: f64,
+    /// Molar internal energy, J/mol.
+    pub internal_energy: f64,
+    /// Molar Helmholtz energy, J/mol.
+    pub helmholtz: f64,
+    /// Molar isobaric heat capacity, J/(mol K).
+    pub cp: f64,
+    /// Molar isochoric heat capacity, J/(mol K).
+    pub cv: f64,
+    /// Speed of sound, m/s.
+    pub speed_of_sound: f64,
+    /// Joule–Thomson coefficient (∂T/∂p)_h, K/Pa.
+    pub joule_thomson: f64,
+    /// Isothermal compressibility −(1/v)(∂v/∂p)_T, 1/Pa.
+    pub isothermal_compressibility: f64,
+    /// Isobaric thermal expansion (1/v)(∂v/∂T)_p, 1/K.
+    pub thermal_expansion: f64,
+    /// Residual molar enthalpy h − h^ig, J/mol.
+    pub residual_enthalpy: f64,
+    /// Residual molar entropy s − s^ig at the same T, p, J/(mol K).
+    pub residual_entropy: f64,
+    /// Residual molar Gibbs energy, J/mol.
+    pub residual_gibbs: f64,
+}
+
+impl PhaseState {
+    /// The phase at (T [K], p [Pa], n [mol]) on the chosen root.
+    pub fn new<M: FluidModel + ?Sized>(model: &M, t: f64, p: f64, n: &[f64], root: RootChoice) -> Result<Self> {
+        let nc = model.num_components();
+        let mut w = FugacityWork::new(nc);
+        let mut out = LnPhi::new(nc);
+        ln_phi(model, t, p, n, root, Need::VALUES, &mut w, &mut out)?;
+        Ok(PhaseState {
+            t,
+            p,
+            n: n.to_vec(),
+            v: out.v,
+            kind: if out.liquid_like {
+                PhaseKind::Liquid
+            } else {
+                PhaseKind::Vapor
+            },
+        })
+    }
+
+    /// Total amount, mol.
+    pub fn total(&self) -> f64 {
+        self.n.iter().sum()
+    }
+
+    /// Mole fractions.
+    pub fn composition(&self) -> Vec<f64> {
+        let s = self.total();
+        self.n.iter().map(|x| x / s).collect()
+    }
+
+    /// Computes every property of [`Properties`].
+    ///
+    /// Residual quantities need only the model; absolute energies and heat capacities also use
+    /// the ideal-gas correlations and fail with [`Error::OutsideValidity`] outside their range.
+    pub fn properties<M: FluidModel + ?Sized>(&self, model: &M) -> Result<Properties> {
+        let nc = model.num_components();
+        check::temperature(self.t)?;
+        check::pressure(self.p)?;
+        let ntot = check::amounts(&self.n, nc)?;
+        let mut w = FugacityWork::new(nc);
+        let mut out = LnPhi::new(nc);
+        evaluate_at_volume(
+            model,
+            self.t,
+            self.p,
+            self.v,
+            &self.n,
+            ntot,
+            Need {
+                composition: false,
+                temperature: true,
+                pressure: false,
+            },
+            &mut w,
+            &mut out,
+        )?;
+        let d = &w.derivs;
+        let (t, p, v) = (self.t, self.p, self.v);
+        let rt = R * t;
+        let p_v = -rt * d.f_vv - ntot * rt / (v * v);
+        let p_t = p / t - rt * d.f_tv;
+        // Residual properties of the whole phase (J, J/K).
+        let u_r = -rt * t * d.f_t;
+        let h_r = u_r + p * v - ntot * rt;
+        let s_r = -R * (t * d.f_t + d.f) + ntot * R * out.z.ln();
+        let cv_r = -rt * (2.0 * d.f_t + t * d.f_tt);
+        let cp_r = cv_r - t * p_t * p_t / p_v - ntot * R;
+        // Ideal-gas part.
+        let (mut h_ig, mut s_ig, mut cp_ig, mut mass) = (0.0, 0.0, 0.0, 0.0);
+        let x: Vec<f64> = self.n.iter().map(|ni| ni / ntot).collect();
+        for i in 0..nc {
+            mass += self.n[i] * model.molar_mass(i);
+            if self.n[i] > 0.0 {
+                let ig = model.ideal_gas(t, i)?;
+                h_ig += self.n[i] * ig.h;
+                s_ig += self.n[i] * (ig.s - R * (x[i] * p / P_STANDARD).ln());
+                cp_ig += self.n[i] * ig.cp;
+            }
+        }
+        let h = h_ig + h_r;
+        let s = s_ig + s_r;
+        let cp = cp_ig + cp_r;
+        let cv = cp_ig - ntot * R + cv_r;
+        let dvdt = -p_t / p_v;
+        let w2 = -v * v / mass * (cp / cv) * p_v;
+        if !(w2 > 0.0) || !(cv > 0.0) {
+            return Err(Error::NoSolution(format!(
+                "the phase at T = {t} K, p = {p} Pa is mechanically or thermally unstable (cv = {cv} J/K, w² = {w2} m²/s²)"
+            )));
+        }
+        let props = Properties {
+            temperature: t,
+            pressure: p,
+            molar_volume: v / ntot,
+            molar_density: ntot / v,
+            mass_density: mass / v,
+            molar_mass: mass / ntot,
+            z: out.z,
+            fugacity: (0..nc).map(|i| x[i] * out.ln_phi[i].exp() * p).collect(),
+            ln_phi: out.ln_phi.clone(),
+            composition: x,
+            enthalpy: h / ntot,
+            entropy: s / ntot,
+            gibbs: (h - t * s) / ntot,
+            internal_energy: (h - p * v) / ntot,
+            helmholtz: (h - p * v - t * s) / ntot,
+            cp: cp / ntot,
+            cv: cv / ntot,
+            speed_of_sound: w2.sqrt(),
+            joule_thomson: (t * dvdt - v) / cp,
+            isothermal_compressibility: -1.0 / (v * p_v),
+            thermal_expansion: dvdt / v,
+            residual_enthalpy: h_r / ntot,
+            residual_entropy: s_r / ntot,
+            residual_gibbs: (h_r - t * s_r) / ntot,
+        };
+        Ok(props)
+    }
+}

@@ -1,0 +1,135 @@
+//! Real roots of cubics and a safeguarded scalar root finder.
+
+/// Real roots of x³ + a x² + b x + c = 0, ascending, each polished by Newton steps.
+/// Returns the roots in the first `count` entries of the array.
+pub fn cubic_real_roots(a: f64, b: f64, c: f64) -> ([f64; 3], usize) {
+    // Depressed cubic t³ + p t + q = 0 with x = t − a/3.
+    let a3 = a / 3.0;
+    let p = b - a * a3;
+    let q = 2.0 * a3 * a3 * a3 - a3 * b + c;
+    let disc = (q / 2.0) * (q / 2.0) + (p / 3.0) * (p / 3.0) * (p / 3.0);
+    let mut r = [0.0; 3];
+    let count;
+    if disc > 0.0 {
+        // One real root (Cardano), computed without cancellation.
+        let sq = disc.sqrt();
+        let u = if q > 0.0 { -(q / 2.0 + sq) } else { -q / 2.0 + sq };
+        let u = u.cbrt();
+        let t = if u != 0.0 { u - p / (3.0 * u) } else { 0.0 };
+        r[0] = t - a3;
+        count = 1;
+    } else if p == 0.0 {
+        r[0] = -a3;
+        count = 1;
+    } else {
+        // Three real roots (trigonometric form).
+        let m = 2.0 * (-p / 3.0).sqrt();
+        let arg = (3.0 * q / (p * m)).clamp(-1.0, 1.0);
+        let theta = arg.acos() / 3.0;
+        let two_pi_3 = 2.0 * std::f64::consts::PI / 3.0;
+        for (k, rk) in r.iter_mut().enumerate() {
+            *rk = m * (theta - two_pi_3 * k as f64).cos() - a3;
+        }
+        count = 3;
+    }
+    for x in r.iter_mut().take(count) {
+        for _ in 0..3 {
+            let f = ((*x + a) * *x + b) * *x + c;
+            let df = (3.0 * *x + 2.0 * a) * *x + b;
+            if df == 0.0 {
+                break;
+            }
+            let dx = f / df;
+            *x -= dx;
+            if dx.abs() <= 1e-16 * x.abs() {
+                break;
+            }
+        }
+    }
+    r[..count].sort_by(|x, y| x.total_cmp(y));
+    (r, count)
+}
+
+/// Finds a root of `f` in the bracket [lo, hi] (f(lo) and f(hi) of opposite sign) by
+/// Newton steps safeguarded with bisection. `f` returns (value, derivative).
+/// Returns `None` if the bracket is invalid or the tolerance is not reached in `max_iter`.
+pub fn newton_bracketed<F>(
+    mut f: F,
+    mut lo: f64,
+    mut hi: f64,
+    x0: f64,
+    tol: f64,
+    max_iter: usize,
+) -> Option<(f64, usize)>
+where
+    F: FnMut(f64) -> (f64, f64),
+{
+    let (flo, _) = f(lo);
+    let (fhi, _) = f(hi);
+    if !(flo.is_finite() && fhi.is_finite()) || flo * fhi > 0.0 {
+        return None;
+    }
+    if flo == 0.0 {
+        return Some((lo, 0));
+    }
+    if fhi == 0.0 {
+        return Some((hi, 0));
+    }
+    // Orient so that f(lo) < 0.
+    let flip = flo > 0.0;
+    let mut x = if x0 > lo && x0 < hi { x0 } else { 0.5 * (lo + hi) };
+    for it in 1..=max_iter {
+        let (mut fx, mut dfx) = f(x);
+        if flip {
+            fx = -fx;
+            dfx = -dfx;
+        }
+        if fx == 0.0 {
+            return Some((x, it));
+        }
+        if fx < 0.0 {
+            lo = x;
+        } else {
+            hi = x;
+        }
+        let mut xn = x - fx / dfx;
+        if !(xn > lo && xn < hi) || !xn.is_finite() {
+            xn = 0.5 * (lo + hi);
+        }
+        if (xn - x).abs() <= tol * (1.0 + x.abs()) || (hi - lo) <= tol * (1.0 + x.abs()) {
+            return Some((xn, it));
+        }
+        x = xn;
+    }
+    None
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn cubic_three_roots() {
+        // (x-1)(x-2)(x-3) = x³ - 6x² + 11x - 6
+        let (r, n) = cubic_real_roots(-6.0, 11.0, -6.0);
+        assert_eq!(n, 3);
+        for (x, e) in r.iter().zip([1.0, 2.0, 3.0]) {
+            assert!((x - e).abs() < 1e-13, "{x} vs {e}");
+        }
+    }
+
+    #[test]
+    fn cubic_one_root() {
+        // (x-2)(x²+1) = x³ - 2x² + x - 2
+        let (r, n) = cubic_real_roots(-2.0, 1.0, -2.0);
+        assert_eq!(n, 1);
+        assert!((r[0] - 2.0).abs() < 1e-14);
+    }
+
+    #[test]
+    fn bracketed_newton_finds_sqrt2() {
+        let (x, _) = newton_bracketed(|x| (x * x - 2.0, 2.0 * x), 0.0, 2.0, 1.0, 1e-15, 100).unwrap();
+        assert!((x - 2f64.sqrt()).abs() < 1e-14);
+        assert!(newton_bracketed(|x| (x * x + 1.0, 2.0 * x), 0.0, 2.0, 1.0, 1e-15, 100).is_none());
+    }
+}

@@ -6,11 +6,13 @@
 //! [`Error::NotConverged`](crate::Error::NotConverged) with the iterations and the residual
 //! reached.
 
+pub mod batch;
 pub mod flash;
 pub mod rachford_rice;
 pub mod saturation;
 pub mod stability;
 
+pub use batch::flash_batch;
 pub use flash::{Diagnostics, FlashContext, FlashOptions, FlashResult, Phase, TieLine, flash_pt};
 pub use saturation::{
     BubbleDew, PointKind, SaturationOptions, SaturationPoint, bubble_pressure, bubble_temperature, dew_pressure,

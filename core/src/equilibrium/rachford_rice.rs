@@ -211,7 +211,7 @@ mod tests {
     #[test]
     fn negative_flash_extends_the_tie_line() {
         let z = [0.9, 0.1];
-        let k = [1.5, 0.2];
+        let k = [1.5, 0.9];
         let s = solve(&z, &k, true).unwrap();
         assert!(s.beta > 1.0);
         assert_eq!(s.region, RrRegion::AllVapor);

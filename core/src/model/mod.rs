@@ -6,10 +6,12 @@
 //! and their derivatives, energies, heat capacities, speed of sound — is derived from those in
 //! one place ([`fugacity`], [`state`]), so a new model plugs into every solver unchanged.
 
+pub mod any;
 pub mod cubic;
 pub mod fugacity;
 pub mod state;
 
+pub use any::Model;
 pub use cubic::{CubicEos, CubicKind, CubicSpec, KijMatrix};
 pub use fugacity::{FugacityWork, LnPhi, Need, RootChoice, ln_phi};
 pub use state::{PhaseKind, PhaseState, Properties};

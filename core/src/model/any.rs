@@ -1,0 +1,92 @@
+//! [`Model`]: the closed set of built-in fluid models as one concrete, serialisable type,
+//! for bindings, files and worker processes.
+
+use super::{CriticalConstants, CubicEos, FluidModel, HelmholtzDerivs, Need, VolumeRoots};
+use crate::error::{Error, Result};
+use crate::substance::IdealGasSpecies;
+use serde::{Deserialize, Serialize};
+
+/// Any built-in fluid model. Serialises as a JSON object with a `"model"` tag, e.g.
+/// `{"model": "cubic", "kind": "peng_robinson", "components": [...], "kij": ...}`.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(tag = "model", rename_all = "snake_case")]
+#[non_exhaustive]
+pub enum Model {
+    /// A cubic equation of state.
+    Cubic(CubicEos),
+}
+
+impl Model {
+    /// Parses a JSON model description.
+    pub fn from_json(text: &str) -> Result<Model> {
+        serde_json::from_str(text).map_err(|e| Error::Data(format!("model description: {e}")))
+    }
+
+    /// The JSON model description (round-trips through [`Model::from_json`]).
+    pub fn to_json(&self) -> String {
+        serde_json::to_string(self).unwrap_or_else(|e| format!("{{\"error\": \"{e}\"}}"))
+    }
+}
+
+impl From<CubicEos> for Model {
+    fn from(m: CubicEos) -> Self {
+        Model::Cubic(m)
+    }
+}
+
+macro_rules! delegate {
+    ($self:ident, $m:ident => $e:expr) => {
+        match $self {
+            Model::Cubic($m) => $e,
+        }
+    };
+}
+
+impl FluidModel for Model {
+    fn num_components(&self) -> usize {
+        delegate!(self, m => m.num_components())
+    }
+    fn component_name(&self, i: usize) -> &str {
+        delegate!(self, m => m.component_name(i))
+    }
+    fn molar_mass(&self, i: usize) -> f64 {
+        delegate!(self, m => m.molar_mass(i))
+    }
+    fn critical_constants(&self, i: usize) -> CriticalConstants {
+        delegate!(self, m => m.critical_constants(i))
+    }
+    fn residual(&self, t: f64, v: f64, n: &[f64], need: Need, out: &mut HelmholtzDerivs) -> Result<()> {
+        delegate!(self, m => m.residual(t, v, n, need, out))
+    }
+    fn volume_roots(&self, t: f64, p: f64, n: &[f64], work: &mut HelmholtzDerivs) -> Result<VolumeRoots> {
+        delegate!(self, m => m.volume_roots(t, p, n, work))
+    }
+    fn is_liquid_like(&self, t: f64, v: f64, n: &[f64]) -> bool {
+        delegate!(self, m => m.is_liquid_like(t, v, n))
+    }
+    fn ideal_gas(&self, t: f64, i: usize) -> Result<IdealGasSpecies> {
+        delegate!(self, m => m.ideal_gas(t, i))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::model::CubicKind;
+    use crate::substance::DataBank;
+
+    #[test]
+    fn json_round_trip() {
+        let comps = DataBank::embedded().get_many(&["methane", "ethane"]).unwrap();
+        let m: Model = CubicEos::new(CubicKind::PengRobinson, comps)
+            .unwrap()
+            .with_pair(0, 1, 0.01, 0.0)
+            .unwrap()
+            .into();
+        let s = m.to_json();
+        assert!(s.contains("\"model\":\"cubic\""));
+        let back = Model::from_json(&s).unwrap();
+        assert_eq!(back, m);
+        assert!(Model::from_json("{\"model\": \"cubic\", \"kind\": \"nope\"}").is_err());
+    }
+}

@@ -1,7 +1,7 @@
 //! [`Model`]: the closed set of built-in fluid models as one concrete, serialisable type,
 //! for bindings, files and worker processes.
 
-use super::{CriticalConstants, CubicEos, FluidModel, HelmholtzDerivs, Need, VolumeRoots};
+use super::{CriticalConstants, CubicEos, FluidModel, HelmholtzDerivs, Iapws95, Need, VolumeRoots};
 use crate::error::{Error, Result};
 use crate::substance::IdealGasSpecies;
 use serde::{Deserialize, Serialize};
@@ -11,9 +11,13 @@ use serde::{Deserialize, Serialize};
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(tag = "model", rename_all = "snake_case")]
 #[non_exhaustive]
+// Models are built once and shared, so the size difference between variants does not matter.
+#[allow(clippy::large_enum_variant)]
 pub enum Model {
     /// A cubic equation of state.
     Cubic(CubicEos),
+    /// Water by IAPWS-95 (one component, "water"); `{"model": "iapws95"}`.
+    Iapws95(Iapws95),
 }
 
 impl Model {
@@ -34,10 +38,17 @@ impl From<CubicEos> for Model {
     }
 }
 
+impl From<Iapws95> for Model {
+    fn from(m: Iapws95) -> Self {
+        Model::Iapws95(m)
+    }
+}
+
 macro_rules! delegate {
     ($self:ident, $m:ident => $e:expr) => {
         match $self {
             Model::Cubic($m) => $e,
+            Model::Iapws95($m) => $e,
         }
     };
 }
@@ -88,5 +99,9 @@ mod tests {
         let back = Model::from_json(&s).unwrap();
         assert_eq!(back, m);
         assert!(Model::from_json("{\"model\": \"cubic\", \"kind\": \"nope\"}").is_err());
+        let w: Model = Iapws95::new().into();
+        assert_eq!(w.to_json(), "{\"model\":\"iapws95\"}");
+        assert_eq!(Model::from_json("{\"model\": \"iapws95\"}").unwrap(), w);
+        assert_eq!(w.component_name(0), "water");
     }
 }

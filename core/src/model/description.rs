@@ -64,6 +64,8 @@ pub enum ModelDescription {
         #[serde(default)]
         volume_shift: Option<ShiftSpec>,
     },
+    /// Water by IAPWS-95: `{"model": "iapws95"}` (no parameters).
+    Iapws95 {},
 }
 
 impl ModelDescription {
@@ -75,7 +77,12 @@ impl ModelDescription {
     /// Builds the model, looking names up in `bank`.
     pub fn build(&self, bank: &DataBank) -> Result<Model> {
         match self {
-            ModelDescription::Cubic { kind, components, kij, volume_shift } => {
+            ModelDescription::Cubic {
+                kind,
+                components,
+                kij,
+                volume_shift,
+            } => {
                 let mut comps = Vec::with_capacity(components.len());
                 for c in components {
                     match c {
@@ -99,7 +106,10 @@ impl ModelDescription {
                 let mut k = KijMatrix::zeros(nc);
                 for row in kij {
                     if row.len() != 3 && row.len() != 4 {
-                        return Err(Error::invalid("kij", format!("entry {row:?}; [i, j, k0] or [i, j, k0, k1] is required")));
+                        return Err(Error::invalid(
+                            "kij",
+                            format!("entry {row:?}; [i, j, k0] or [i, j, k0, k1] is required"),
+                        ));
                     }
                     let idx = |x: f64| -> Result<usize> {
                         if x >= 0.0 && x.fract() == 0.0 && (x as usize) < nc {
@@ -115,12 +125,16 @@ impl ModelDescription {
                     None => {}
                     Some(ShiftSpec::Named(s)) if s == "peneloux" => m = m.with_peneloux_estimate()?,
                     Some(ShiftSpec::Named(s)) => {
-                        return Err(Error::invalid("volume_shift", format!("'{s}'; \"peneloux\" or a list of values is required")));
+                        return Err(Error::invalid(
+                            "volume_shift",
+                            format!("'{s}'; \"peneloux\" or a list of values is required"),
+                        ));
                     }
                     Some(ShiftSpec::Values(v)) => m = m.with_volume_shift(v.clone())?,
                 }
                 Ok(Model::Cubic(m))
             }
+            ModelDescription::Iapws95 {} => Ok(Model::Iapws95(super::Iapws95::new())),
         }
     }
 }
@@ -152,6 +166,8 @@ mod tests {
         let unknown = r#"{"model": "cubic", "kind": "peng_robinson", "components": ["methanee"]}"#;
         let e = model_from_json(unknown, DataBank::embedded()).unwrap_err();
         assert!(e.to_string().contains("methane"), "{e}");
+        let w = model_from_json(r#"{"model": "iapws95"}"#, DataBank::embedded()).unwrap();
+        assert_eq!(w.component_name(0), "water");
         // A full model round-trips through the same entry point.
         let full = m.to_json();
         assert_eq!(model_from_json(&full, DataBank::embedded()).unwrap(), m);

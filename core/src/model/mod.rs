@@ -10,12 +10,15 @@ pub mod any;
 pub mod cubic;
 pub mod description;
 pub mod fugacity;
+pub mod iapws95;
+pub mod if97;
 pub mod state;
 
 pub use any::Model;
-pub use description::{ModelDescription, model_from_json};
 pub use cubic::{CubicEos, CubicKind, CubicSpec, KijMatrix};
+pub use description::{ModelDescription, model_from_json};
 pub use fugacity::{FugacityWork, LnPhi, Need, RootChoice, ln_phi};
+pub use iapws95::Iapws95;
 pub use state::{PhaseKind, PhaseState, Properties};
 
 use crate::error::Result;

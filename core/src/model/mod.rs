@@ -13,8 +13,8 @@ pub mod fugacity;
 pub mod state;
 
 pub use any::Model;
-pub use description::{ModelDescription, model_from_json};
 pub use cubic::{CubicEos, CubicKind, CubicSpec, KijMatrix};
+pub use description::{ModelDescription, model_from_json};
 pub use fugacity::{FugacityWork, LnPhi, Need, RootChoice, ln_phi};
 pub use state::{PhaseKind, PhaseState, Properties};
 

@@ -12,6 +12,7 @@ pub mod description;
 pub mod fugacity;
 pub mod iapws95;
 pub mod if97;
+pub mod solid;
 pub mod state;
 
 pub use any::Model;
@@ -19,6 +20,7 @@ pub use cubic::{CubicEos, CubicKind, CubicSpec, KijMatrix};
 pub use description::{ModelDescription, model_from_json};
 pub use fugacity::{FugacityWork, LnPhi, Need, RootChoice, ln_phi};
 pub use iapws95::Iapws95;
+pub use solid::{FusionData, FusionSolid, IceIh, SolidModel, SolidProperties};
 pub use state::{PhaseKind, PhaseState, Properties};
 
 use crate::error::Result;

@@ -8,12 +8,14 @@
 
 pub mod batch;
 pub mod flash;
+pub mod pure;
 pub mod rachford_rice;
 pub mod saturation;
 pub mod stability;
 
 pub use batch::flash_batch;
 pub use flash::{Diagnostics, FlashContext, FlashOptions, FlashResult, Phase, TieLine, flash_pt};
+pub use pure::{Coexistence, Crossing, GibbsCurves, PhasePoint, PurePhase, PurePhases, StablePhase, TriplePoint};
 pub use saturation::{
     BubbleDew, PointKind, SaturationOptions, SaturationPoint, bubble_pressure, bubble_temperature, dew_pressure,
     dew_temperature, saturation_pressure, saturation_temperature,

@@ -65,7 +65,7 @@ fn benches(c: &mut Criterion) {
     g.bench_function("warm_two_phase", |b| {
         b.iter(|| {
             k += 1;
-            let t = t2 + if k % 2 == 0 { 0.5 } else { -0.5 };
+            let t = t2 + if k.is_multiple_of(2) { 0.5 } else { -0.5 };
             ctx.flash(&m, t, black_box(p2), &FEED, &nocert).unwrap().phases.len()
         })
     });
@@ -107,7 +107,7 @@ fn benches(c: &mut Criterion) {
     let mut k = 0usize;
     let mut warm = || {
         k += 1;
-        let t = t2 + if k % 2 == 0 { 0.5 } else { -0.5 };
+        let t = t2 + if k.is_multiple_of(2) { 0.5 } else { -0.5 };
         black_box(ctx.flash(&m, t, p2, &FEED, &nocert).unwrap().phases.len());
     };
     let warm_ns = median_ns(&mut warm, 200);
@@ -141,7 +141,7 @@ fn benches(c: &mut Criterion) {
             ps.push(10e5 + 90e5 * j as f64 / (n - 1) as f64);
         }
     }
-    let mut batch = |threads: usize| {
+    let batch = |threads: usize| {
         let t0 = Instant::now();
         let r = flash_batch(&m, &ts, &ps, &FEED, &nocert, threads).unwrap();
         let el = t0.elapsed().as_secs_f64();

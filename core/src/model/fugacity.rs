@@ -87,6 +87,20 @@ impl LnPhi {
         s
     }
 
+    /// Copies `other` into `self` without allocating when the sizes match.
+    pub fn copy_from(&mut self, other: &LnPhi) {
+        self.v = other.v;
+        self.z = other.z;
+        copy_vec(&mut self.ln_phi, &other.ln_phi);
+        copy_vec(&mut self.dn, &other.dn);
+        copy_vec(&mut self.dt, &other.dt);
+        copy_vec(&mut self.dp, &other.dp);
+        copy_vec(&mut self.vbar, &other.vbar);
+        self.g_res = other.g_res;
+        self.two_roots = other.two_roots;
+        self.liquid_like = other.liquid_like;
+    }
+
     fn resize(&mut self, nc: usize) {
         if self.ln_phi.len() != nc {
             self.ln_phi.resize(nc, 0.0);
@@ -222,4 +236,13 @@ pub(crate) fn evaluate_at_volume<M: FluidModel + ?Sized>(
         ));
     }
     Ok(())
+}
+
+fn copy_vec(dst: &mut Vec<f64>, src: &[f64]) {
+    if dst.len() == src.len() {
+        dst.copy_from_slice(src);
+    } else {
+        dst.clear();
+        dst.extend_from_slice(src);
+    }
 }

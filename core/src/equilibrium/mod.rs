@@ -11,6 +11,7 @@ pub mod flash;
 pub mod pure;
 pub mod rachford_rice;
 pub mod saturation;
+pub mod solid_flash;
 pub mod stability;
 
 pub use batch::flash_batch;
@@ -19,6 +20,10 @@ pub use pure::{Coexistence, Crossing, GibbsCurves, PhasePoint, PurePhase, PurePh
 pub use saturation::{
     BubbleDew, PointKind, SaturationOptions, SaturationPoint, bubble_pressure, bubble_temperature, dew_pressure,
     dew_temperature, saturation_pressure, saturation_temperature,
+};
+pub use solid_flash::{
+    SolidFlashOptions, SolidFlashResult, SolidMargin, SolidPhaseResult, SolidPhaseSpec, flash_pt_with_solids,
+    frost_point_temperature,
 };
 pub use stability::{StabilityOptions, StabilityResult, StationaryPoint, TrialSet, stability};
 

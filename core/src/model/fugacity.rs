@@ -117,6 +117,8 @@ impl LnPhi {
 pub struct FugacityWork {
     /// Helmholtz derivatives storage.
     pub derivs: HelmholtzDerivs,
+    /// A second store, for comparing two volume roots without re-evaluation.
+    pub spare: HelmholtzDerivs,
 }
 
 impl FugacityWork {
@@ -124,6 +126,7 @@ impl FugacityWork {
     pub fn new(nc: usize) -> Self {
         FugacityWork {
             derivs: HelmholtzDerivs::new(nc),
+            spare: HelmholtzDerivs::new(nc),
         }
     }
 }
@@ -146,25 +149,33 @@ pub fn ln_phi<M: FluidModel + ?Sized>(
     let ntot = check::amounts(n, nc)?;
     out.resize(nc);
     let roots = model.volume_roots(t, p, n, &mut work.derivs)?;
+    out.two_roots = roots.count == 2;
+    let mneed = Need {
+        pressure: false,
+        ..need
+    };
     let v = match (root, roots.count) {
         (_, 1) => roots.v[0],
         (RootChoice::Liquid, _) => roots.v[0],
         (RootChoice::Vapor, _) => roots.v[1],
         (RootChoice::Stable, _) => {
-            // Least G^r/RT = F + (Z − 1) n − n ln Z over the roots.
-            let mut best = (f64::INFINITY, roots.v[0]);
-            for &v in roots.as_slice() {
-                model.residual(t, v, n, Need::VALUES, &mut work.derivs)?;
+            // Least G^r/RT = F + (Z − 1) n − n ln Z over the two roots; both are evaluated
+            // with the requested derivatives, and the loser's store is discarded.
+            let g = |d: &HelmholtzDerivs, v: f64| {
                 let z = p * v / (ntot * R * t);
-                let g = work.derivs.f + (z - 1.0) * ntot - ntot * z.ln();
-                if g < best.0 {
-                    best = (g, v);
-                }
-            }
-            best.1
+                d.f + (z - 1.0) * ntot - ntot * z.ln()
+            };
+            model.residual(t, roots.v[0], n, mneed, &mut work.derivs)?;
+            model.residual(t, roots.v[1], n, mneed, &mut work.spare)?;
+            let v = if g(&work.spare, roots.v[1]) < g(&work.derivs, roots.v[0]) {
+                std::mem::swap(&mut work.derivs, &mut work.spare);
+                roots.v[1]
+            } else {
+                roots.v[0]
+            };
+            return finish(model, t, p, v, n, ntot, need, &work.derivs, out);
         }
     };
-    out.two_roots = roots.count == 2;
     evaluate_at_volume(model, t, p, v, n, ntot, need, work, out)
 }
 
@@ -180,14 +191,27 @@ pub(crate) fn evaluate_at_volume<M: FluidModel + ?Sized>(
     work: &mut FugacityWork,
     out: &mut LnPhi,
 ) -> Result<()> {
-    let nc = n.len();
-    let mneed = super::Need {
-        composition: need.composition,
-        temperature: need.temperature,
+    let mneed = Need {
         pressure: false,
+        ..need
     };
     model.residual(t, v, n, mneed, &mut work.derivs)?;
-    let d = &work.derivs;
+    finish(model, t, p, v, n, ntot, need, &work.derivs, out)
+}
+
+/// ln φ and its derivatives from the Helmholtz derivatives `d` at volume `v`.
+fn finish<M: FluidModel + ?Sized>(
+    model: &M,
+    t: f64,
+    p: f64,
+    v: f64,
+    n: &[f64],
+    ntot: f64,
+    need: Need,
+    d: &HelmholtzDerivs,
+    out: &mut LnPhi,
+) -> Result<()> {
+    let nc = n.len();
     let rt = R * t;
     let z = p * v / (ntot * rt);
     if !(z > 0.0) || !z.is_finite() {
@@ -206,11 +230,12 @@ pub(crate) fn evaluate_at_volume<M: FluidModel + ?Sized>(
         out.vbar[i] = -p_i / p_v;
     }
     if need.composition {
+        // With v̄_i = −p_i/p_V: p_i p_j/(RT p_V) = v̄_i v̄_j p_V/RT.
+        let c = p_v / rt;
         for i in 0..nc {
-            let p_i = rt / v - rt * d.f_nv[i];
+            let ci = out.vbar[i] * c;
             for j in 0..nc {
-                let p_j = rt / v - rt * d.f_nv[j];
-                out.dn[i * nc + j] = d.f_nn[i * nc + j] + 1.0 / ntot + p_i * p_j / (rt * p_v);
+                out.dn[i * nc + j] = d.f_nn[i * nc + j] + 1.0 / ntot + ci * out.vbar[j];
             }
         }
     }

@@ -112,7 +112,7 @@ pub fn wilson_ln_k<M: FluidModel + ?Sized>(model: &M, t: f64, p: f64, out: &mut 
     }
 }
 
-/// Tests the stability of a phase of amounts `n` (mol) at (T [K], p [Pa]).
+/// Tests the stability of a phase of amounts `n` (mol) at (T (K), p (Pa)).
 pub fn stability<M: FluidModel + ?Sized>(
     model: &M,
     t: f64,

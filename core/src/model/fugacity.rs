@@ -131,7 +131,7 @@ impl FugacityWork {
     }
 }
 
-/// Evaluates ln φ (and the requested derivatives) of a phase at (T [K], p [Pa], n [mol]) on
+/// Evaluates ln φ (and the requested derivatives) of a phase at (T (K), p (Pa), n (mol)) on
 /// the chosen root. Allocation-free once `work` and `out` have been sized.
 pub fn ln_phi<M: FluidModel + ?Sized>(
     model: &M,

@@ -36,7 +36,7 @@ struct ModelArgs {
     /// Equation of state: pr, pr78 or srk.
     #[arg(short = 'e', long, default_value = "pr")]
     equation: String,
-    /// Binary interaction parameter "i,j,k0[,k1]" (k_ij = k0 + k1·T), repeatable; indices from 0.
+    /// Binary interaction parameter `i,j,k0` or `i,j,k0,k1` (k_ij = k0 + k1·T), repeatable; indices from 0.
     #[arg(long = "kij")]
     kij: Vec<String>,
     /// Apply Péneloux volume translation (Rackett-based estimate).

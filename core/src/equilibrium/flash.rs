@@ -618,7 +618,8 @@ impl FlashContext {
             // Switch to Newton once successive substitution has done its cheap work: the
             // residual is small, or SS is slow (near-critical; Michelsen 1982b).
             let slow = ss_done >= 3 && err > 0.6 * last_err;
-            if newton_tries < 3 && ss_done >= next_newton.max(3) && (err < 1e-3 || slow || ss_done >= next_newton + 15) {
+            if newton_tries < 3 && ss_done >= next_newton.max(3) && (err < 1e-3 || slow || ss_done >= next_newton + 15)
+            {
                 newton_tries += 1;
                 match self.newton(model, t, p, opts, diag)? {
                     SplitOutcome::Converged => return self.accept(),

@@ -230,6 +230,9 @@ struct Split {
     phi_y: LnPhi,
     gibbs: f64,
     residual: f64,
+    /// Roots the Newton steps keep each phase on (`Stable` until first decided).
+    root_x: RootChoice,
+    root_y: RootChoice,
 }
 
 impl Split {
@@ -692,6 +695,33 @@ impl FlashContext {
         Ok(SplitOutcome::Converged)
     }
 
+    /// Whether each phase of the split is on its least-Gibbs volume root. Resets a phase that
+    /// is not to `RootChoice::Stable` and returns `false`.
+    fn roots_still_stable<M: FluidModel + ?Sized>(&mut self, model: &M, t: f64, p: f64) -> Result<bool> {
+        let mut ok = true;
+        let s = &mut self.split;
+        for (comp, root) in [(&s.x, &mut s.root_x), (&s.y, &mut s.root_y)] {
+            if *root == RootChoice::Stable {
+                continue;
+            }
+            ln_phi(
+                model,
+                t,
+                p,
+                comp,
+                RootChoice::Stable,
+                Need::VALUES,
+                &mut self.ws.fw,
+                &mut self.ws.phi_a,
+            )?;
+            if self.ws.phi_a.two_roots && self.ws.phi_a.root != *root {
+                *root = RootChoice::Stable;
+                ok = false;
+            }
+        }
+        Ok(ok)
+    }
+
     /// Sets the Newton point to v0 + α Δv, l0 − α Δv.
     fn move_newton(&mut self, alpha: f64) {
         for i in 0..self.nc {
@@ -719,26 +749,16 @@ impl FlashContext {
             s.y[i] = self.newton_v[i] / beta;
             s.x[i] = self.newton_l[i] / omb;
         }
-        ln_phi(
-            model,
-            t,
-            p,
-            &s.x,
-            RootChoice::Stable,
-            Need::COMPOSITION,
-            &mut ws.fw,
-            &mut s.phi_x,
-        )?;
-        ln_phi(
-            model,
-            t,
-            p,
-            &s.y,
-            RootChoice::Stable,
-            Need::COMPOSITION,
-            &mut ws.fw,
-            &mut s.phi_y,
-        )?;
+        // Each phase stays on the root it took at the previous step (one evaluation with
+        // derivatives instead of two); `newton` re-checks the choice at convergence.
+        ln_phi(model, t, p, &s.x, s.root_x, Need::COMPOSITION, &mut ws.fw, &mut s.phi_x)?;
+        ln_phi(model, t, p, &s.y, s.root_y, Need::COMPOSITION, &mut ws.fw, &mut s.phi_y)?;
+        if s.root_x == RootChoice::Stable {
+            s.root_x = s.phi_x.root;
+        }
+        if s.root_y == RootChoice::Stable {
+            s.root_y = s.phi_y.root;
+        }
         s.beta = beta;
         s.omb = omb;
         s.gibbs = gibbs(&ws.z, s);
@@ -778,6 +798,8 @@ impl FlashContext {
             self.newton_v[i] = self.split.beta * self.split.y[i];
             self.newton_l[i] = self.split.omb * self.split.x[i];
         }
+        self.split.root_x = RootChoice::Stable;
+        self.split.root_y = RootChoice::Stable;
         if !self.eval_newton(model, t, p)? {
             return Ok(SplitOutcome::NotConverged);
         }
@@ -794,7 +816,15 @@ impl FlashContext {
         for _ in 0..opts.max_newton_iterations {
             let err0 = self.split.residual;
             if err0 < opts.tolerance {
-                return Ok(SplitOutcome::Converged);
+                if self.roots_still_stable(model, t, p)? {
+                    return Ok(SplitOutcome::Converged);
+                }
+                // A phase sits on the wrong root: re-evaluate on the stable ones and go on.
+                if !self.eval_newton(model, t, p)? {
+                    return Ok(SplitOutcome::NotConverged);
+                }
+                set_lnk(self);
+                continue;
             }
             if !err0.is_finite() {
                 return Ok(SplitOutcome::NotConverged);

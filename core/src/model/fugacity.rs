@@ -43,10 +43,11 @@ impl Need {
 }
 
 /// Which volume root to evaluate a phase on.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, serde::Serialize, serde::Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default, serde::Serialize, serde::Deserialize)]
 #[serde(rename_all = "snake_case")]
 pub enum RootChoice {
     /// The root of least Gibbs energy (the stable one when there are two).
+    #[default]
     Stable,
     /// The smallest volume root (liquid-like); the only root if there is one.
     Liquid,
@@ -75,6 +76,9 @@ pub struct LnPhi {
     pub g_res: f64,
     /// Whether the root taken had a competitor (two roots existed).
     pub two_roots: bool,
+    /// Which of two roots was taken (`Liquid` = smaller volume, `Vapor` = larger), or
+    /// `Stable` when there was only one.
+    pub root: RootChoice,
     /// Whether the phase is liquid-like by the model's rule.
     pub liquid_like: bool,
 }
@@ -98,6 +102,7 @@ impl LnPhi {
         copy_vec(&mut self.vbar, &other.vbar);
         self.g_res = other.g_res;
         self.two_roots = other.two_roots;
+        self.root = other.root;
         self.liquid_like = other.liquid_like;
     }
 
@@ -154,6 +159,11 @@ pub fn ln_phi<M: FluidModel + ?Sized>(
         pressure: false,
         ..need
     };
+    out.root = match (root, roots.count) {
+        (_, 1) => RootChoice::Stable,
+        (RootChoice::Stable, _) => RootChoice::Stable, // decided below
+        (r, _) => r,
+    };
     let v = match (root, roots.count) {
         (_, 1) => roots.v[0],
         (RootChoice::Liquid, _) => roots.v[0],
@@ -169,8 +179,10 @@ pub fn ln_phi<M: FluidModel + ?Sized>(
             model.residual(t, roots.v[1], n, mneed, &mut work.spare)?;
             let v = if g(&work.spare, roots.v[1]) < g(&work.derivs, roots.v[0]) {
                 std::mem::swap(&mut work.derivs, &mut work.spare);
+                out.root = RootChoice::Vapor;
                 roots.v[1]
             } else {
+                out.root = RootChoice::Liquid;
                 roots.v[0]
             };
             return finish(model, t, p, v, n, ntot, need, &work.derivs, out);

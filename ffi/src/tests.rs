@@ -1,0 +1,1 @@
+//! Rust-side tests of the boundary.

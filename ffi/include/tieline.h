@@ -772,9 +772,12 @@ tl_status tl_flash(const struct tl_model *model,
  * PT flashes of many points in parallel. `temperature` (K) and `pressure` (Pa) have
  * `npts` values each; `feeds` holds either one feed of `nc` amounts (mol) shared by every
  * point, or `npts * nc` amounts (one row per point); `feeds_len` says which. `threads` = 0
- * uses the library's global thread pool, otherwise a pool of that many threads (≤ 256) for
- * this call. Points are processed in contiguous chunks, each warm-starting from point to
- * point, so order sweeps along T or p. `options` may be NULL.
+ * uses one thread per available processor, otherwise that many threads (≤ 256); the threads
+ * are started for the call and joined before it returns. Points are processed in contiguous
+ * chunks (about four per thread), each by a fresh solver that warm-starts from point to
+ * point, so order sweeps along T or p. The partition is that of the Rust
+ * `tieline::equilibrium::flash_batch`, so the numbers equal the Rust batch's for the same
+ * `threads`. `options` may be NULL.
  *
  * The call returns `TL_STATUS_OK` when the batch ran; each point's own outcome is in
  * `out->status[i]` (a failed point does not spoil the others; its slots hold NaN). A point

@@ -194,9 +194,9 @@ pub(crate) fn record_panic(payload: Box<dyn std::any::Any + Send>) -> tl_status 
 /// caught and returned as `TL_STATUS_PANIC`. No panic ever unwinds into the caller.
 macro_rules! ffi_boundary {
     ($body:block) => {{
-        match ::std::panic::catch_unwind(::std::panic::AssertUnwindSafe(
-            || -> $crate::boundary::FfiResult<()> { $body },
-        )) {
+        match ::std::panic::catch_unwind(::std::panic::AssertUnwindSafe(|| -> $crate::boundary::FfiResult<()> {
+            $body
+        })) {
             Ok(Ok(())) => $crate::boundary::tl_status::Ok,
             Ok(Err(e)) => e.record(),
             Err(payload) => $crate::boundary::record_panic(payload),
@@ -208,9 +208,9 @@ macro_rules! ffi_boundary {
 /// recorded as the last error and otherwise ignored.
 macro_rules! ffi_boundary_void {
     ($body:block) => {{
-        match ::std::panic::catch_unwind(::std::panic::AssertUnwindSafe(
-            || -> $crate::boundary::FfiResult<()> { $body },
-        )) {
+        match ::std::panic::catch_unwind(::std::panic::AssertUnwindSafe(|| -> $crate::boundary::FfiResult<()> {
+            $body
+        })) {
             Ok(Ok(())) => {}
             Ok(Err(e)) => {
                 e.record();
@@ -384,6 +384,11 @@ pub(crate) struct OutArray<T> {
     len: usize,
 }
 
+// SAFETY: an `OutArray` is a checked pointer to caller memory; sharing it between threads is
+// sound as long as no two threads write the same index, which its users guarantee (a batch
+// writes each point's slots from the one thread that flashed that point).
+unsafe impl<T: Send> Sync for OutArray<T> {}
+
 impl<T: Copy> OutArray<T> {
     /// Checks a caller output array of `len` values that must hold at least `need`.
     ///
@@ -510,7 +515,13 @@ pub(crate) unsafe fn c_str_array<'a>(p: *const *const c_char, count: usize, what
 ///
 /// # Safety
 /// `buf` must be NULL or point to `len` writable bytes; `needed` NULL or writable.
-pub(crate) unsafe fn write_text(text: &str, buf: *mut c_char, len: usize, needed: *mut usize, truncate: bool) -> FfiResult {
+pub(crate) unsafe fn write_text(
+    text: &str,
+    buf: *mut c_char,
+    len: usize,
+    needed: *mut usize,
+    truncate: bool,
+) -> FfiResult {
     // SAFETY: forwarded contract.
     let needed = unsafe { Out::optional(needed, "needed")? };
     let need = text.len() + 1;

@@ -4,8 +4,10 @@
 use crate::boundary::*;
 use crate::model::{ModelData, model_ref, tl_model};
 use crate::result::{ResultData, store_flash, tl_phase_kind, tl_result, write};
+use std::sync::atomic::{AtomicUsize, Ordering};
 use std::sync::{Arc, Mutex, TryLockError};
-use tieline::equilibrium::{FlashContext, FlashOptions, StabilityOptions, flash_batch, stability};
+use tieline::equilibrium::batch::chunk_len;
+use tieline::equilibrium::{FlashContext, FlashOptions, FlashResult, StabilityOptions, stability};
 use tieline::model::FluidModel;
 
 /// Options of the PT flash. Initialise with `tl_flash_options_default`, then change fields.
@@ -220,7 +222,12 @@ pub unsafe extern "C" fn tl_context_flash(
     ffi_boundary!({
         // SAFETY: caller contract.
         let (mut ctx, n, opts, mut out) = unsafe {
-            (lock(context)?, slice(n, len, "n")?, flash_options(options)?, write(result)?)
+            (
+                lock(context)?,
+                slice(n, len, "n")?,
+                flash_options(options)?,
+                write(result)?,
+            )
         };
         let ContextData { model, flash } = &mut *ctx;
         let r = flash.flash(&model.value.model, temperature, pressure, n, &opts)?;
@@ -242,8 +249,14 @@ pub unsafe extern "C" fn tl_flash(
 ) -> tl_status {
     ffi_boundary!({
         // SAFETY: caller contract.
-        let (m, n, opts, mut out) =
-            unsafe { (model_ref(model)?, slice(n, len, "n")?, flash_options(options)?, write(result)?) };
+        let (m, n, opts, mut out) = unsafe {
+            (
+                model_ref(model)?,
+                slice(n, len, "n")?,
+                flash_options(options)?,
+                write(result)?,
+            )
+        };
         let mut ctx = FlashContext::new(m.num_components());
         let r = ctx.flash(m, temperature, pressure, n, &opts)?;
         store_flash(&mut out, r);
@@ -281,9 +294,12 @@ pub struct tl_batch_output {
 /// PT flashes of many points in parallel. `temperature` (K) and `pressure` (Pa) have
 /// `npts` values each; `feeds` holds either one feed of `nc` amounts (mol) shared by every
 /// point, or `npts * nc` amounts (one row per point); `feeds_len` says which. `threads` = 0
-/// uses the library's global thread pool, otherwise a pool of that many threads (≤ 256) for
-/// this call. Points are processed in contiguous chunks, each warm-starting from point to
-/// point, so order sweeps along T or p. `options` may be NULL.
+/// uses one thread per available processor, otherwise that many threads (≤ 256); the threads
+/// are started for the call and joined before it returns. Points are processed in contiguous
+/// chunks (about four per thread), each by a fresh solver that warm-starts from point to
+/// point, so order sweeps along T or p. The partition is that of the Rust
+/// `tieline::equilibrium::flash_batch`, so the numbers equal the Rust batch's for the same
+/// `threads`. `options` may be NULL.
 ///
 /// The call returns `TL_STATUS_OK` when the batch ran; each point's own outcome is in
 /// `out->status[i]` (a failed point does not spoil the others; its slots hold NaN). A point
@@ -324,65 +340,134 @@ pub unsafe extern "C" fn tl_flash_batch(
             ));
         }
         if threads > 256 {
-            return Err(FfiError::invalid("threads", format!("{threads}; at most 256 are allowed")));
+            return Err(FfiError::invalid(
+                "threads",
+                format!("{threads}; at most 256 are allowed"),
+            ));
         }
         let nc = m.num_components();
+        let per_point = if feeds.len() == nc {
+            false
+        } else if feeds.len() == nc * npts {
+            true
+        } else {
+            return Err(FfiError::invalid(
+                "feeds",
+                format!(
+                    "{} values; {nc} (one shared feed) or {} (one per point) are required",
+                    feeds.len(),
+                    nc * npts
+                ),
+            ));
+        };
         let slots = o
             .points
             .checked_mul(o.max_phases)
-            .and_then(|s| s.checked_mul(nc.max(1)).map(|_| s))
+            .filter(|s| s.checked_mul(nc).is_some())
             .ok_or_else(|| FfiError::invalid("out", "points × max_phases × components overflows"))?;
         let need = npts * o.max_phases;
         // SAFETY: the arrays are sized as documented on `tl_batch_output` (caller contract).
-        let (status, num_phases, kind, fraction, volume, comp) = unsafe {
-            (
-                OutArray::new(o.status, o.points, npts, "out->status")?,
-                OutArray::optional(o.num_phases, o.points, npts, "out->num_phases")?,
-                OutArray::optional(o.phase_kind, slots, need, "out->phase_kind")?,
-                OutArray::optional(o.phase_fraction, slots, need, "out->phase_fraction")?,
-                OutArray::optional(o.phase_molar_volume, slots, need, "out->phase_molar_volume")?,
-                OutArray::optional(o.phase_composition, slots * nc, need * nc, "out->phase_composition")?,
-            )
+        let w = unsafe {
+            BatchWriter {
+                max_phases: o.max_phases,
+                nc,
+                status: OutArray::new(o.status, o.points, npts, "out->status")?,
+                num_phases: OutArray::optional(o.num_phases, o.points, npts, "out->num_phases")?,
+                kind: OutArray::optional(o.phase_kind, slots, need, "out->phase_kind")?,
+                fraction: OutArray::optional(o.phase_fraction, slots, need, "out->phase_fraction")?,
+                volume: OutArray::optional(o.phase_molar_volume, slots, need, "out->phase_molar_volume")?,
+                comp: OutArray::optional(o.phase_composition, slots * nc, need * nc, "out->phase_composition")?,
+            }
         };
-        let results = flash_batch(m, t, p, feeds, &opts, threads)?;
-        let nan = vec![f64::NAN; nc];
-        for (i, r) in results.iter().enumerate() {
-            let phases = match r {
-                Ok(f) if f.phases.len() <= o.max_phases => {
-                    status.set(i, tl_status::Ok);
-                    &f.phases[..]
+        let nthreads = if threads == 0 {
+            std::thread::available_parallelism().map_or(1, |n| n.get())
+        } else {
+            threads
+        };
+        let chunk = chunk_len(npts, nthreads);
+        let nchunks = npts.div_ceil(chunk);
+        let next = AtomicUsize::new(0);
+        let work = || {
+            loop {
+                let c = next.fetch_add(1, Ordering::Relaxed);
+                if c >= nchunks {
+                    break;
                 }
-                Ok(_) => {
-                    status.set(i, tl_status::BufferTooSmall);
-                    &[][..]
-                }
-                Err(e) => {
-                    status.set(i, tl_status::from_kind(e.kind()));
-                    &[][..]
-                }
-            };
-            if let Some(a) = &num_phases {
-                a.set(i, phases.len());
-            }
-            for k in 0..o.max_phases {
-                let s = i * o.max_phases + k;
-                let ph = phases.get(k);
-                if let Some(a) = &kind {
-                    a.set(s, ph.map_or(tl_phase_kind::None, |ph| tl_phase_kind::from_kind(ph.kind)));
-                }
-                if let Some(a) = &fraction {
-                    a.set(s, ph.map_or(f64::NAN, |ph| ph.fraction));
-                }
-                if let Some(a) = &volume {
-                    a.set(s, ph.map_or(f64::NAN, |ph| ph.molar_volume));
-                }
-                if let Some(a) = &comp {
-                    a.write(s * nc, ph.map_or(&nan[..], |ph| &ph.composition[..]));
+                let mut ctx = FlashContext::new(nc);
+                for i in c * chunk..((c + 1) * chunk).min(npts) {
+                    let feed = if per_point { &feeds[i * nc..(i + 1) * nc] } else { feeds };
+                    w.point(i, ctx.flash(m, t[i], p[i], feed, &opts));
                 }
             }
+        };
+        let workers = nthreads.min(nchunks);
+        if workers <= 1 {
+            work();
+        } else {
+            std::thread::scope(|s| {
+                for _ in 0..workers {
+                    s.spawn(work);
+                }
+            });
         }
         Ok(())
     })
+}
+
+/// The checked output arrays of a batch; each point's slots are written by the one thread
+/// that flashed it.
+struct BatchWriter {
+    max_phases: usize,
+    nc: usize,
+    status: OutArray<tl_status>,
+    num_phases: Option<OutArray<usize>>,
+    kind: Option<OutArray<tl_phase_kind>>,
+    fraction: Option<OutArray<f64>>,
+    volume: Option<OutArray<f64>>,
+    comp: Option<OutArray<f64>>,
+}
+
+impl BatchWriter {
+    fn point(&self, i: usize, r: tieline::Result<&FlashResult>) {
+        let phases = match r {
+            Ok(f) if f.phases.len() <= self.max_phases => {
+                self.status.set(i, tl_status::Ok);
+                &f.phases[..]
+            }
+            Ok(_) => {
+                self.status.set(i, tl_status::BufferTooSmall);
+                &[][..]
+            }
+            Err(e) => {
+                self.status.set(i, tl_status::from_kind(e.kind()));
+                &[][..]
+            }
+        };
+        if let Some(a) = &self.num_phases {
+            a.set(i, phases.len());
+        }
+        for k in 0..self.max_phases {
+            let s = i * self.max_phases + k;
+            let ph = phases.get(k);
+            if let Some(a) = &self.kind {
+                a.set(
+                    s,
+                    ph.map_or(tl_phase_kind::None, |ph| tl_phase_kind::from_kind(ph.kind)),
+                );
+            }
+            if let Some(a) = &self.fraction {
+                a.set(s, ph.map_or(f64::NAN, |ph| ph.fraction));
+            }
+            if let Some(a) = &self.volume {
+                a.set(s, ph.map_or(f64::NAN, |ph| ph.molar_volume));
+            }
+            if let Some(a) = &self.comp {
+                for c in 0..self.nc {
+                    a.set(s * self.nc + c, ph.map_or(f64::NAN, |ph| ph.composition[c]));
+                }
+            }
+        }
+    }
 }
 
 /// Tangent-plane stability test of a phase of amounts `n` (`len` values, mol) at

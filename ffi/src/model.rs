@@ -42,7 +42,9 @@ fn cubic_kind(k: tl_cubic_kind) -> FfiResult<CubicKind> {
         TL_CUBIC_SOAVE_REDLICH_KWONG => Ok(CubicKind::SoaveRedlichKwong),
         other => Err(FfiError::invalid(
             "kind",
-            format!("{other}; one of TL_CUBIC_PENG_ROBINSON (1), TL_CUBIC_PENG_ROBINSON78 (2), TL_CUBIC_SOAVE_REDLICH_KWONG (3) is required"),
+            format!(
+                "{other}; one of TL_CUBIC_PENG_ROBINSON (1), TL_CUBIC_PENG_ROBINSON78 (2), TL_CUBIC_SOAVE_REDLICH_KWONG (3) is required"
+            ),
         )),
     }
 }
@@ -59,7 +61,10 @@ pub(crate) unsafe fn model_ref<'a>(m: *const tl_model) -> FfiResult<&'a Model> {
 fn build(bank: &DataBank, names: &[&str], kind: tl_cubic_kind) -> FfiResult<Model> {
     let kind = cubic_kind(kind)?;
     if names.is_empty() {
-        return Err(FfiError::invalid("names", "no components given; at least one is required"));
+        return Err(FfiError::invalid(
+            "names",
+            "no components given; at least one is required",
+        ));
     }
     let comps = bank.get_many(names)?;
     Ok(Model::Cubic(CubicEos::new(kind, comps)?))
@@ -242,7 +247,8 @@ pub unsafe extern "C" fn tl_model_to_json(
     ffi_boundary!({
         // SAFETY: caller contract.
         let m = unsafe { model_ref(model)? };
-        let text = serde_json::to_string(m).map_err(|e| FfiError::new(tl_status::Data, format!("serialising the model: {e}")))?;
+        let text = serde_json::to_string(m)
+            .map_err(|e| FfiError::new(tl_status::Data, format!("serialising the model: {e}")))?;
         // SAFETY: caller contract.
         unsafe { write_text(&text, buf, len, needed, false) }
     })

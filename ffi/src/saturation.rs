@@ -5,8 +5,8 @@ use crate::boundary::*;
 use crate::model::{component_index, model_ref, tl_model};
 use crate::result::{tl_phase_kind, tl_properties};
 use tieline::equilibrium::{
-    BubbleDew, SaturationOptions, SaturationPoint, bubble_pressure, bubble_temperature, dew_pressure,
-    dew_temperature, saturation_pressure, saturation_temperature,
+    BubbleDew, SaturationOptions, SaturationPoint, bubble_pressure, bubble_temperature, dew_pressure, dew_temperature,
+    saturation_pressure, saturation_temperature,
 };
 use tieline::model::{FluidModel, Model, PhaseState, RootChoice};
 
@@ -120,7 +120,13 @@ pub unsafe extern "C" fn tl_saturation_pressure(
     out: *mut tl_saturation_point,
 ) -> tl_status {
     // SAFETY: caller contract.
-    ffi_boundary!({ unsafe { pure(model, component, options, out, |m, i, o| saturation_pressure(m, temperature, i, o)) } })
+    ffi_boundary!({
+        unsafe {
+            pure(model, component, options, out, |m, i, o| {
+                saturation_pressure(m, temperature, i, o)
+            })
+        }
+    })
 }
 
 /// Boiling temperature of component `component` at `pressure` (Pa). `TL_STATUS_NO_SOLUTION`
@@ -134,7 +140,13 @@ pub unsafe extern "C" fn tl_saturation_temperature(
     out: *mut tl_saturation_point,
 ) -> tl_status {
     // SAFETY: caller contract.
-    ffi_boundary!({ unsafe { pure(model, component, options, out, |m, i, o| saturation_temperature(m, pressure, i, o)) } })
+    ffi_boundary!({
+        unsafe {
+            pure(model, component, options, out, |m, i, o| {
+                saturation_temperature(m, pressure, i, o)
+            })
+        }
+    })
 }
 
 /// A bubble or dew point of a mixture (SI units). The incipient phase is the vapour at a
@@ -174,7 +186,14 @@ unsafe fn mixture(
     solve: MixtureSolver,
 ) -> FfiResult {
     // SAFETY: forwarded contract.
-    let (m, n, opts, out) = unsafe { (model_ref(model)?, slice(n, len, "n")?, options(opts)?, Out::new(out, "out")?) };
+    let (m, n, opts, out) = unsafe {
+        (
+            model_ref(model)?,
+            slice(n, len, "n")?,
+            options(opts)?,
+            Out::new(out, "out")?,
+        )
+    };
     let nc = m.num_components();
     // SAFETY: forwarded contract.
     let inc = unsafe { OutArray::optional(incipient, incipient_len, nc, "incipient")? };
@@ -209,7 +228,21 @@ pub unsafe extern "C" fn tl_bubble_pressure(
     incipient_len: usize,
 ) -> tl_status {
     // SAFETY: caller contract.
-    ffi_boundary!({ unsafe { mixture(model, temperature, n, len, options, out, incipient, incipient_len, bubble_pressure) } })
+    ffi_boundary!({
+        unsafe {
+            mixture(
+                model,
+                temperature,
+                n,
+                len,
+                options,
+                out,
+                incipient,
+                incipient_len,
+                bubble_pressure,
+            )
+        }
+    })
 }
 
 /// Dew-point pressure of the vapour `n` at `temperature` (K); where two exist (retrograde
@@ -226,7 +259,21 @@ pub unsafe extern "C" fn tl_dew_pressure(
     incipient_len: usize,
 ) -> tl_status {
     // SAFETY: caller contract.
-    ffi_boundary!({ unsafe { mixture(model, temperature, n, len, options, out, incipient, incipient_len, dew_pressure) } })
+    ffi_boundary!({
+        unsafe {
+            mixture(
+                model,
+                temperature,
+                n,
+                len,
+                options,
+                out,
+                incipient,
+                incipient_len,
+                dew_pressure,
+            )
+        }
+    })
 }
 
 /// Bubble-point temperature of the liquid `n` at `pressure` (Pa). Arguments as
@@ -243,7 +290,21 @@ pub unsafe extern "C" fn tl_bubble_temperature(
     incipient_len: usize,
 ) -> tl_status {
     // SAFETY: caller contract.
-    ffi_boundary!({ unsafe { mixture(model, pressure, n, len, options, out, incipient, incipient_len, bubble_temperature) } })
+    ffi_boundary!({
+        unsafe {
+            mixture(
+                model,
+                pressure,
+                n,
+                len,
+                options,
+                out,
+                incipient,
+                incipient_len,
+                bubble_temperature,
+            )
+        }
+    })
 }
 
 /// Dew-point temperature of the vapour `n` at `pressure` (Pa). Arguments as
@@ -260,7 +321,21 @@ pub unsafe extern "C" fn tl_dew_temperature(
     incipient_len: usize,
 ) -> tl_status {
     // SAFETY: caller contract.
-    ffi_boundary!({ unsafe { mixture(model, pressure, n, len, options, out, incipient, incipient_len, dew_temperature) } })
+    ffi_boundary!({
+        unsafe {
+            mixture(
+                model,
+                pressure,
+                n,
+                len,
+                options,
+                out,
+                incipient,
+                incipient_len,
+                dew_temperature,
+            )
+        }
+    })
 }
 
 /// Which volume root a phase is evaluated on (`TL_ROOT_*`).
@@ -310,7 +385,10 @@ pub unsafe extern "C" fn tl_phase_properties(
         if let Some(a) = lp {
             a.write(0, &props.ln_phi);
         }
-        out.set(tl_properties::from_core(tl_phase_kind::from_kind(Some(state.kind)), &props));
+        out.set(tl_properties::from_core(
+            tl_phase_kind::from_kind(Some(state.kind)),
+            &props,
+        ));
         Ok(())
     })
 }

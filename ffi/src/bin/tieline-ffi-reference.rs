@@ -92,7 +92,13 @@ fn main() {
         .iter()
         .map(|c| {
             let m = model(c);
-            let r = stability(&m, num(c, "temperature"), num(c, "pressure"), &feed(c), &StabilityOptions::default());
+            let r = stability(
+                &m,
+                num(c, "temperature"),
+                num(c, "pressure"),
+                &feed(c),
+                &StabilityOptions::default(),
+            );
             let rec = or_status(r, |s| {
                 json!({"status": 0, "stable": s.stable, "min_tpd": s.min_tpd, "num_points": s.points.len(),
                        "iterations": s.iterations,
@@ -155,9 +161,10 @@ fn main() {
             let m = model(c);
             let i = c["component"].as_u64().unwrap_or(0) as usize;
             let rec = or_status(saturation_pressure(&m, num(c, "temperature"), i, &sopts), |s| {
-                let back = or_status(saturation_temperature(&m, s.pressure, i, &sopts), |b| {
-                    json!({"status": 0, "temperature": b.temperature, "iterations": b.iterations})
-                });
+                let back = or_status(
+                    saturation_temperature(&m, s.pressure, i, &sopts),
+                    |b| json!({"status": 0, "temperature": b.temperature, "iterations": b.iterations}),
+                );
                 json!({"status": 0, "pressure": s.pressure, "liquid_molar_volume": s.liquid_molar_volume,
                        "vapor_molar_volume": s.vapor_molar_volume,
                        "enthalpy_of_vaporization": s.enthalpy_of_vaporization, "iterations": s.iterations,

@@ -6,6 +6,7 @@
 //! ratio, the same for one-shot cold flashes, and the throughput of `tl_flash_batch` on one
 //! and two threads next to the Rust `flash_batch`. The Rust and C variants alternate within
 //! each round, so drift of the machine affects both alike. No assertions: figures only.
+//! `TL_BENCH_QUICK=1` runs the warm per-call comparison alone.
 
 #![allow(missing_docs)]
 
@@ -96,6 +97,9 @@ fn main() {
             },
         );
         println!("{label:<44} {r:>12.0} {c:>12.0} {:>8.3}", c / r);
+    }
+    if std::env::var_os("TL_BENCH_QUICK").is_some() {
+        return; // the per-call comparison only
     }
     let (r, c) = compare(
         15,

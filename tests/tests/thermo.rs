@@ -230,3 +230,26 @@ fn warm_start_gives_the_cold_answer_and_negative_flash_extends_the_tie_line() {
         assert!((back - z[i]).abs() < 1e-12);
     }
 }
+
+#[test]
+fn bubble_point_near_the_critical_region_is_found() {
+    // Methane/n-butane 50/50 at 300 K: the Wilson estimate leads to the trivial solution, the
+    // boundary search finds the bubble point (about 98 bar with PR). Checked by flashes on
+    // either side: two phases with a vanishing vapour just below, one phase just above.
+    let m = pr(&["methane", "n-butane"]);
+    let z = [0.5, 0.5];
+    let b = bubble_pressure(&m, 300.0, &z, &SaturationOptions::default()).unwrap();
+    assert!(b.pressure > 80e5 && b.pressure < 120e5, "{}", b.pressure);
+    let opts = FlashOptions::default();
+    let below = flash_pt(&m, 300.0, b.pressure * (1.0 - 1e-6), &z, &opts).unwrap();
+    assert_eq!(below.phases.len(), 2);
+    assert!(below.phases[0].fraction < 1e-3, "{}", below.phases[0].fraction);
+    assert!((below.phases[0].composition[0] - b.incipient[0]).abs() < 1e-3);
+    assert_eq!(
+        flash_pt(&m, 300.0, b.pressure * (1.0 + 1e-4), &z, &opts)
+            .unwrap()
+            .phases
+            .len(),
+        1
+    );
+}

@@ -21,10 +21,10 @@ pub const NAMES: [&str; 10] = [
 /// Feed mole fractions of the benchmark mixture (invented rich gas).
 pub const FEED: [f64; 10] = [0.01, 0.02, 0.70, 0.09, 0.06, 0.02, 0.03, 0.025, 0.02, 0.025];
 
-/// A two-phase point of the benchmark mixture: (T [K], p [Pa]).
+/// A two-phase point of the benchmark mixture: (T (K), p (Pa)).
 pub const TWO_PHASE: (f64, f64) = (280.0, 50e5);
 
-/// A single-phase (vapour) point of the benchmark mixture: (T [K], p [Pa]).
+/// A single-phase (vapour) point of the benchmark mixture: (T (K), p (Pa)).
 pub const ONE_PHASE: (f64, f64) = (420.0, 50e5);
 
 /// The benchmark model: Peng–Robinson with N2/CO2/C1 interaction parameters of typical size

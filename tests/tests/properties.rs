@@ -159,3 +159,27 @@ fn no_dew_point_above_the_cricondentherm() {
     let e = bubble_pressure(&m, 400.0, &z, &SaturationOptions::default()).unwrap_err();
     assert_eq!(e.kind(), ErrorKind::NoSolution, "{e}");
 }
+
+#[test]
+fn three_phase_states_are_reported_not_misrepresented() {
+    // Water, methane and n-decane at 300 K and 50 bar separate into a gas, a hydrocarbon
+    // liquid and an aqueous liquid (water and decane are practically immiscible; k_ij = 0.5
+    // for water–hydrocarbon pairs with PR is common practice, no source). The two-phase flash
+    // must say so through its certificate rather than return a two-phase answer.
+    let comps = DataBank::embedded()
+        .get_many(&["water", "methane", "n-decane"])
+        .unwrap();
+    let m = CubicEos::new(CubicKind::PengRobinson, comps)
+        .and_then(|m| m.with_pair(0, 1, 0.5, 0.0))
+        .and_then(|m| m.with_pair(0, 2, 0.5, 0.0))
+        .unwrap();
+    for z in [[0.5, 0.3, 0.2], [0.3, 0.4, 0.3], [0.9, 0.05, 0.05]] {
+        let e = flash_pt(&m, 300.0, 50e5, &z, &FlashOptions::default()).unwrap_err();
+        assert_eq!(e.kind(), ErrorKind::NoSolution, "{e}");
+        assert!(e.to_string().contains("more than two phases"), "{e}");
+    }
+    // Without the hydrocarbon liquid (no decane) gas and water split in two, certified.
+    let r = flash_pt(&m, 300.0, 50e5, &[0.5, 0.5, 0.0], &FlashOptions::default()).unwrap();
+    assert_eq!(r.phases.len(), 2);
+    assert!(r.diagnostics.certificate.unwrap() >= -1e-10);
+}

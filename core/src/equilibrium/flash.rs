@@ -230,6 +230,9 @@ struct Split {
     phi_y: LnPhi,
     gibbs: f64,
     residual: f64,
+    /// Roots the Newton steps keep each phase on (`Stable` until first decided).
+    root_x: RootChoice,
+    root_y: RootChoice,
 }
 
 impl Split {
@@ -276,8 +279,12 @@ pub struct FlashContext {
     prev_two_phase: bool,
     result: FlashResult,
     nc: usize,
+    /// Newton variables: y-phase amounts v and x-phase amounts l = z − v, both carried so
+    /// that a component almost wholly in one phase keeps its tiny amount in the other exactly.
     newton_v: Vec<f64>,
     newton_v0: Vec<f64>,
+    newton_l: Vec<f64>,
+    newton_l0: Vec<f64>,
 }
 
 impl FlashContext {
@@ -300,6 +307,8 @@ impl FlashContext {
         self.prev_two_phase = false;
         self.newton_v = vec![0.0; nc];
         self.newton_v0 = vec![0.0; nc];
+        self.newton_l = vec![0.0; nc];
+        self.newton_l0 = vec![0.0; nc];
         self.result.feed = vec![0.0; nc];
         self.result.phases = Vec::with_capacity(2);
     }
@@ -612,7 +621,8 @@ impl FlashContext {
             // Switch to Newton once successive substitution has done its cheap work: the
             // residual is small, or SS is slow (near-critical; Michelsen 1982b).
             let slow = ss_done >= 3 && err > 0.6 * last_err;
-            if newton_tries < 3 && ss_done >= next_newton && (err < 1e-3 || slow || ss_done >= next_newton + 15) {
+            if newton_tries < 3 && ss_done >= next_newton.max(3) && (err < 1e-3 || slow || ss_done >= next_newton + 15)
+            {
                 newton_tries += 1;
                 match self.newton(model, t, p, opts, diag)? {
                     SplitOutcome::Converged => return self.accept(),
@@ -685,6 +695,41 @@ impl FlashContext {
         Ok(SplitOutcome::Converged)
     }
 
+    /// Whether each phase of the split is on its least-Gibbs volume root. Resets a phase that
+    /// is not to `RootChoice::Stable` and returns `false`.
+    fn roots_still_stable<M: FluidModel + ?Sized>(&mut self, model: &M, t: f64, p: f64) -> Result<bool> {
+        let mut ok = true;
+        let s = &mut self.split;
+        for (comp, root) in [(&s.x, &mut s.root_x), (&s.y, &mut s.root_y)] {
+            if *root == RootChoice::Stable {
+                continue;
+            }
+            ln_phi(
+                model,
+                t,
+                p,
+                comp,
+                RootChoice::Stable,
+                Need::VALUES,
+                &mut self.ws.fw,
+                &mut self.ws.phi_a,
+            )?;
+            if self.ws.phi_a.two_roots && self.ws.phi_a.root != *root {
+                *root = RootChoice::Stable;
+                ok = false;
+            }
+        }
+        Ok(ok)
+    }
+
+    /// Sets the Newton point to v0 + α Δv, l0 − α Δv.
+    fn move_newton(&mut self, alpha: f64) {
+        for i in 0..self.nc {
+            self.newton_v[i] = self.newton_v0[i] + alpha * self.ws.step[i];
+            self.newton_l[i] = self.newton_l0[i] - alpha * self.ws.step[i];
+        }
+    }
+
     /// Evaluates the split at y-phase amounts `newton_v` with composition derivatives: phase
     /// compositions, ln φ, G, the gradient (into `ws.rhs`, negated) and the residual.
     /// Returns `false` if a phase amount is not positive.
@@ -693,34 +738,27 @@ impl FlashContext {
         let ws = &mut self.ws;
         let s = &mut self.split;
         let beta: f64 = self.newton_v.iter().sum();
-        let omb: f64 = ws.z.iter().zip(&self.newton_v).map(|(z, v)| z - v).sum();
+        let omb: f64 = self.newton_l.iter().sum();
+        if (0..nc).any(|i| ws.z[i] > 0.0 && !(self.newton_v[i] > 0.0 && self.newton_l[i] > 0.0)) {
+            return Ok(false);
+        }
         if !(beta > 0.0 && omb > 0.0) {
             return Ok(false);
         }
         for i in 0..nc {
             s.y[i] = self.newton_v[i] / beta;
-            s.x[i] = (ws.z[i] - self.newton_v[i]) / omb;
+            s.x[i] = self.newton_l[i] / omb;
         }
-        ln_phi(
-            model,
-            t,
-            p,
-            &s.x,
-            RootChoice::Stable,
-            Need::COMPOSITION,
-            &mut ws.fw,
-            &mut s.phi_x,
-        )?;
-        ln_phi(
-            model,
-            t,
-            p,
-            &s.y,
-            RootChoice::Stable,
-            Need::COMPOSITION,
-            &mut ws.fw,
-            &mut s.phi_y,
-        )?;
+        // Each phase stays on the root it took at the previous step (one evaluation with
+        // derivatives instead of two); `newton` re-checks the choice at convergence.
+        ln_phi(model, t, p, &s.x, s.root_x, Need::COMPOSITION, &mut ws.fw, &mut s.phi_x)?;
+        ln_phi(model, t, p, &s.y, s.root_y, Need::COMPOSITION, &mut ws.fw, &mut s.phi_y)?;
+        if s.root_x == RootChoice::Stable {
+            s.root_x = s.phi_x.root;
+        }
+        if s.root_y == RootChoice::Stable {
+            s.root_y = s.phi_y.root;
+        }
         s.beta = beta;
         s.omb = omb;
         s.gibbs = gibbs(&ws.z, s);
@@ -758,7 +796,10 @@ impl FlashContext {
         }
         for i in 0..nc {
             self.newton_v[i] = self.split.beta * self.split.y[i];
+            self.newton_l[i] = self.split.omb * self.split.x[i];
         }
+        self.split.root_x = RootChoice::Stable;
+        self.split.root_y = RootChoice::Stable;
         if !self.eval_newton(model, t, p)? {
             return Ok(SplitOutcome::NotConverged);
         }
@@ -775,7 +816,15 @@ impl FlashContext {
         for _ in 0..opts.max_newton_iterations {
             let err0 = self.split.residual;
             if err0 < opts.tolerance {
-                return Ok(SplitOutcome::Converged);
+                if self.roots_still_stable(model, t, p)? {
+                    return Ok(SplitOutcome::Converged);
+                }
+                // A phase sits on the wrong root: re-evaluate on the stable ones and go on.
+                if !self.eval_newton(model, t, p)? {
+                    return Ok(SplitOutcome::NotConverged);
+                }
+                set_lnk(self);
+                continue;
             }
             if !err0.is_finite() {
                 return Ok(SplitOutcome::NotConverged);
@@ -791,7 +840,7 @@ impl FlashContext {
                             let mut h =
                                 s.phi_y.dn[i * nc + j] / beta + s.phi_x.dn[i * nc + j] / omb - 1.0 / beta - 1.0 / omb;
                             if i == j {
-                                h += 1.0 / self.newton_v[i] + 1.0 / (ws.z[i] - self.newton_v[i]);
+                                h += 1.0 / self.newton_v[i] + 1.0 / self.newton_l[i];
                             }
                             h
                         } else if i == j {
@@ -813,20 +862,19 @@ impl FlashContext {
                 if z <= 0.0 {
                     continue;
                 }
-                let (v, dv) = (self.newton_v[i], self.ws.step[i]);
-                if v + dv <= 0.0 {
+                let (v, l, dv) = (self.newton_v[i], self.newton_l[i], self.ws.step[i]);
+                if dv < 0.0 && v + dv <= 0.0 {
                     alpha = alpha.min(0.9 * v / -dv);
-                } else if v + dv >= z {
-                    alpha = alpha.min(0.9 * (z - v) / dv);
+                } else if dv > 0.0 && l - dv <= 0.0 {
+                    alpha = alpha.min(0.9 * l / dv);
                 }
             }
             let g0 = self.split.gibbs;
             self.newton_v0.copy_from_slice(&self.newton_v);
+            self.newton_l0.copy_from_slice(&self.newton_l);
             let mut accepted = false;
             for _ in 0..12 {
-                for i in 0..nc {
-                    self.newton_v[i] = self.newton_v0[i] + alpha * self.ws.step[i];
-                }
+                self.move_newton(alpha);
                 if self.eval_newton(model, t, p)? {
                     let g1 = self.split.gibbs;
                     let err1 = self.split.residual;
@@ -840,7 +888,7 @@ impl FlashContext {
             }
             if !accepted {
                 // Restore the last accepted point (its ln K is still in ws.lnk).
-                self.newton_v.copy_from_slice(&self.newton_v0);
+                self.move_newton(0.0);
                 return Ok(SplitOutcome::NotConverged);
             }
             // A full step that barely reduced the residual means a long, nearly flat valley of
@@ -850,16 +898,7 @@ impl FlashContext {
                 let mut best_g = self.split.gibbs;
                 let mut a = 2.0;
                 for _ in 0..30 {
-                    let ok = (0..nc).all(|i| {
-                        let v = self.newton_v0[i] + a * self.ws.step[i];
-                        self.ws.z[i] <= 0.0 || (v > 0.0 && v < self.ws.z[i])
-                    });
-                    if !ok {
-                        break;
-                    }
-                    for i in 0..nc {
-                        self.newton_v[i] = self.newton_v0[i] + a * self.ws.step[i];
-                    }
+                    self.move_newton(a);
                     if !self.eval_newton(model, t, p)? || self.split.gibbs >= best_g {
                         break;
                     }
@@ -867,9 +906,7 @@ impl FlashContext {
                     best_alpha = a;
                     a *= 2.0;
                 }
-                for i in 0..nc {
-                    self.newton_v[i] = self.newton_v0[i] + best_alpha * self.ws.step[i];
-                }
+                self.move_newton(best_alpha);
                 if !self.eval_newton(model, t, p)? {
                     return Ok(SplitOutcome::NotConverged);
                 }

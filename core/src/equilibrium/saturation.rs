@@ -383,6 +383,141 @@ fn mixture_point<M: FluidModel + ?Sized>(
     n: &[f64],
     opts: &SaturationOptions,
 ) -> Result<BubbleDew> {
+    match solve_point(model, kind, spec, n, opts, None) {
+        Ok(r) => Ok(r),
+        Err(e) if matches!(e.kind(), crate::ErrorKind::NoSolution | crate::ErrorKind::NotConverged) => {
+            // The estimate from Wilson K-values led nowhere (typically to the trivial
+            // solution near a critical region): locate the phase boundaries by flashes along
+            // the unknown, then converge on the one of the requested kind.
+            scan_for_point(model, kind, spec, n, opts).map_err(|scan| match scan {
+                Error::NoSolution(m) => Error::NoSolution(format!(
+                    "{e}; a search along the {} found: {m}",
+                    if kind.pressure_unknown() {
+                        "pressure"
+                    } else {
+                        "temperature"
+                    }
+                )),
+                other => other,
+            })
+        }
+        Err(e) => Err(e),
+    }
+}
+
+/// Finds the phase boundaries of `n` along p (at T = `spec`) or T (at p = `spec`) by PT
+/// flashes on a grid and bisection, classifies each as a bubble point (the vapour vanishes) or
+/// a dew point (the liquid vanishes), and converges the first one of the requested kind
+/// (lowest pressure, or lowest temperature) by Newton from the nearby split.
+fn scan_for_point<M: FluidModel + ?Sized>(
+    model: &M,
+    kind: PointKind,
+    spec: f64,
+    n: &[f64],
+    opts: &SaturationOptions,
+) -> Result<BubbleDew> {
+    use crate::equilibrium::{FlashContext, FlashOptions};
+    let nc = model.num_components();
+    let p_unknown = kind.pressure_unknown();
+    let (tc_min, tc_max, pc_max) = (0..nc)
+        .filter(|&i| n[i] > 0.0)
+        .fold((f64::INFINITY, 0.0f64, 0.0f64), |a, i| {
+            let c = model.critical_constants(i);
+            (a.0.min(c.tc), a.1.max(c.tc), a.2.max(c.pc))
+        });
+    let (lo, hi, npts) = if p_unknown {
+        (1e3f64, 5.0 * pc_max, 80)
+    } else {
+        (0.3 * tc_min, 1.3 * tc_max, 80)
+    };
+    let at = |k: usize| {
+        let f = k as f64 / (npts - 1) as f64;
+        if p_unknown {
+            lo * (hi / lo).powf(f)
+        } else {
+            lo + (hi - lo) * f
+        }
+    };
+    let fopts = FlashOptions {
+        certificate: false,
+        ..Default::default()
+    };
+    let mut ctx = FlashContext::new(nc);
+    let phases_at = |x: f64, ctx: &mut FlashContext| -> Option<usize> {
+        let (t, p) = if p_unknown { (spec, x) } else { (x, spec) };
+        ctx.flash(model, t, p, n, &fopts).ok().map(|r| r.phases.len())
+    };
+    let mut found: Vec<String> = Vec::new();
+    let mut prev: Option<(f64, usize)> = None;
+    for k in 0..npts {
+        let x = at(k);
+        let Some(count) = phases_at(x, &mut ctx) else {
+            prev = None;
+            continue;
+        };
+        if let Some((xp, cp)) = prev
+            && cp != count
+        {
+            // Bisect down to a two-phase point very close to the boundary.
+            let (mut a, mut b) = if cp == 2 { (xp, x) } else { (x, xp) };
+            for _ in 0..40 {
+                let m = if p_unknown { (a * b).sqrt() } else { 0.5 * (a + b) };
+                match phases_at(m, &mut ctx) {
+                    Some(2) => a = m,
+                    Some(_) => b = m,
+                    None => break,
+                }
+                if (a - b).abs() < 1e-7 * a.abs() {
+                    break;
+                }
+            }
+            let (t, p) = if p_unknown { (spec, a) } else { (a, spec) };
+            ctx.reset();
+            if let Ok(r) = ctx.flash(model, t, p, n, &fopts)
+                && r.phases.len() == 2
+            {
+                let (light, heavy) = (&r.phases[0], &r.phases[1]);
+                let bubble_here = light.fraction < heavy.fraction;
+                let here = if bubble_here { "bubble" } else { "dew" };
+                found.push(format!(
+                    "a {here} point near {a:.6e} {}",
+                    if p_unknown { "Pa" } else { "K" }
+                ));
+                if bubble_here == kind.bubble() {
+                    let lnk: Vec<f64> = (0..nc)
+                        .map(|i| {
+                            if n[i] > 0.0 {
+                                (light.composition[i] / heavy.composition[i]).ln()
+                            } else {
+                                0.0
+                            }
+                        })
+                        .collect();
+                    if let Ok(point) = solve_point(model, kind, spec, n, opts, Some((a, lnk))) {
+                        return Ok(point);
+                    }
+                }
+            }
+        }
+        prev = Some((x, count));
+    }
+    Err(Error::NoSolution(if found.is_empty() {
+        "no phase boundary".into()
+    } else {
+        found.join(", ")
+    }))
+}
+
+/// Newton solution of a bubble or dew point, from Wilson K-values or from `init` = (the
+/// unknown p or T, ln K).
+fn solve_point<M: FluidModel + ?Sized>(
+    model: &M,
+    kind: PointKind,
+    spec: f64,
+    n: &[f64],
+    opts: &SaturationOptions,
+    init: Option<(f64, Vec<f64>)>,
+) -> Result<BubbleDew> {
     let nc = model.num_components();
     let ntot = check::amounts(n, nc)?;
     let z: Vec<f64> = n.iter().map(|v| v / ntot).collect();
@@ -427,6 +562,14 @@ fn mixture_point<M: FluidModel + ?Sized>(
     }
     let mut lnk = vec![0.0; nc];
     wilson_k(model, t, p, &mut lnk);
+    if let Some((x, k)) = init {
+        if p_unknown {
+            p = x;
+        } else {
+            t = x;
+        }
+        lnk = k;
+    }
     let mut w = FugacityWork::new(nc);
     let mut bulk = LnPhi::new(nc);
     let mut inc = LnPhi::new(nc);

@@ -112,7 +112,7 @@ pub fn wilson_ln_k<M: FluidModel + ?Sized>(model: &M, t: f64, p: f64, out: &mut 
     }
 }
 
-/// Tests the stability of a phase of amounts `n` (mol) at (T [K], p [Pa]).
+/// Tests the stability of a phase of amounts `n` (mol) at (T (K), p (Pa)).
 pub fn stability<M: FluidModel + ?Sized>(
     model: &M,
     t: f64,
@@ -209,7 +209,7 @@ pub(crate) fn stability_with<M: FluidModel + ?Sized>(
                         continue;
                     }
                 }
-                record_point(res, ws, nc, outcome, opts);
+                record_point(res, ws, nc, outcome);
                 if opts.early_exit && outcome.status == TrialStatus::Converged && outcome.tpd < -opts.threshold {
                     break;
                 }
@@ -217,21 +217,13 @@ pub(crate) fn stability_with<M: FluidModel + ?Sized>(
         }
     }
     res.points.sort_by(|a, b| a.tpd.total_cmp(&b.tpd));
-    res.min_tpd = res.points.first().map_or(0.0, |p| p.tpd.min(0.0f64.max(p.tpd)));
-    if let Some(first) = res.points.first() {
-        res.min_tpd = first.tpd;
-    }
+    // `+ 0.0` turns a −0.0 (ΣW = 1 exactly) into 0.0.
+    res.min_tpd = res.points.first().map_or(0.0, |p| p.tpd + 0.0);
     res.stable = res.min_tpd >= -opts.threshold;
     Ok(())
 }
 
-fn record_point(
-    res: &mut StabilityResult,
-    ws: &EquilibriumWork,
-    nc: usize,
-    outcome: TrialOutcome,
-    _opts: &StabilityOptions,
-) {
+fn record_point(res: &mut StabilityResult, ws: &EquilibriumWork, nc: usize, outcome: TrialOutcome) {
     let sw: f64 = ws.w.iter().sum();
     // Merge with an existing point of the same composition.
     for pt in res.points.iter_mut() {
@@ -245,7 +237,6 @@ fn record_point(
             return;
         }
     }
-    // Reuse a spare point's storage when available.
     let composition: Vec<f64> = ws.w.iter().map(|w| w / sw).collect();
     res.points.push(StationaryPoint {
         composition,

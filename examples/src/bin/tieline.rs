@@ -36,7 +36,7 @@ struct ModelArgs {
     /// Equation of state: pr, pr78 or srk.
     #[arg(short = 'e', long, default_value = "pr")]
     equation: String,
-    /// Binary interaction parameter "i,j,k0[,k1]" (k_ij = k0 + k1·T), repeatable; indices from 0.
+    /// Binary interaction parameter `i,j,k0` or `i,j,k0,k1` (k_ij = k0 + k1·T), repeatable; indices from 0.
     #[arg(long = "kij")]
     kij: Vec<String>,
     /// Apply Péneloux volume translation (Rackett-based estimate).
@@ -65,15 +65,8 @@ enum Command {
     Flash {
         #[command(flatten)]
         m: ModelArgs,
-        /// Temperature (K, or with unit: 25C).
-        #[arg(short = 't', long, allow_hyphen_values = true)]
-        temperature: String,
-        /// Pressure (Pa, or with unit: 50bar, 5MPa).
-        #[arg(short = 'p', long, allow_hyphen_values = true)]
-        pressure: String,
-        /// Feed amounts, mol (comma-separated; normalisation not required).
-        #[arg(short = 'z', long, allow_hyphen_values = true)]
-        feed: String,
+        #[command(flatten)]
+        st: StateArgs,
         /// Also report the tie-line extension of a single-phase feed.
         #[arg(long)]
         negative: bool,
@@ -97,15 +90,8 @@ enum Command {
     Props {
         #[command(flatten)]
         m: ModelArgs,
-        /// Temperature.
-        #[arg(short = 't', long, allow_hyphen_values = true)]
-        temperature: String,
-        /// Pressure.
-        #[arg(short = 'p', long, allow_hyphen_values = true)]
-        pressure: String,
-        /// Amounts, mol.
-        #[arg(short = 'z', long, allow_hyphen_values = true)]
-        feed: String,
+        #[command(flatten)]
+        st: StateArgs,
         /// Volume root: stable, liquid or vapor.
         #[arg(long, default_value = "stable")]
         root: String,
@@ -119,6 +105,30 @@ enum Command {
         #[arg(long)]
         json: bool,
     },
+}
+
+/// A state: temperature, pressure and amounts.
+#[derive(Args)]
+struct StateArgs {
+    /// Temperature (K, or with unit: 25C).
+    #[arg(short = 't', long, allow_hyphen_values = true)]
+    temperature: String,
+    /// Pressure (Pa, or with unit: 50bar, 5MPa).
+    #[arg(short = 'p', long, allow_hyphen_values = true)]
+    pressure: String,
+    /// Feed amounts, mol (comma-separated; normalisation not required).
+    #[arg(short = 'z', long, allow_hyphen_values = true)]
+    feed: String,
+}
+
+impl StateArgs {
+    fn parse(&self) -> Result<(f64, f64, Vec<f64>)> {
+        Ok((
+            parse_temperature(&self.temperature)?,
+            parse_pressure(&self.pressure)?,
+            parse_list("feed", &self.feed)?,
+        ))
+    }
 }
 
 #[derive(Args)]
@@ -338,16 +348,9 @@ fn run(cli: Cli) -> Result<String> {
     let sopts = SaturationOptions::default();
     match cli.command {
         Command::Demo { json } => demo(json),
-        Command::Flash {
-            m,
-            temperature,
-            pressure,
-            feed,
-            negative,
-        } => {
+        Command::Flash { m, st, negative } => {
             let model = model(&m)?;
-            let (t, p) = (parse_temperature(&temperature)?, parse_pressure(&pressure)?);
-            let z = parse_list("feed", &feed)?;
+            let (t, p, z) = st.parse()?;
             let opts = FlashOptions {
                 negative_flash: negative,
                 ..Default::default()
@@ -402,13 +405,7 @@ fn run(cli: Cli) -> Result<String> {
         }
         Command::Bubble(a) => point(a, true, &sopts),
         Command::Dew(a) => point(a, false, &sopts),
-        Command::Props {
-            m,
-            temperature,
-            pressure,
-            feed,
-            root,
-        } => {
+        Command::Props { m, st, root } => {
             let model = model(&m)?;
             let root = match root.as_str() {
                 "stable" => RootChoice::Stable,
@@ -421,13 +418,8 @@ fn run(cli: Cli) -> Result<String> {
                     ));
                 }
             };
-            let s = PhaseState::new(
-                &model,
-                parse_temperature(&temperature)?,
-                parse_pressure(&pressure)?,
-                &parse_list("feed", &feed)?,
-                root,
-            )?;
+            let (t, p, n) = st.parse()?;
+            let s = PhaseState::new(&model, t, p, &n, root)?;
             let pr = s.properties(&model)?;
             if m.json {
                 return Ok(serde_json::to_string_pretty(&json!({"state": s, "properties": pr})).unwrap_or_default());

@@ -653,6 +653,7 @@ impl Iapws95 {
             x = 0.5 * hi;
         }
         let mut best: Option<(f64, f64)> = None;
+        let mut lo_state = (0.0, 0.0); // (p, ∂p/∂ρ) at `lo`
         for _ in 0..200 {
             let (px, dpx) = p_and_dp(t, x);
             if !(dpx > 0.0) || !px.is_finite() {
@@ -662,11 +663,12 @@ impl Iapws95 {
                 if best.is_none_or(|(bf, _)| f.abs() < bf) {
                     best = Some((f.abs(), x));
                 }
-                if f.abs() <= 1e-15 * p {
+                if f.abs() <= (1e-15 * p).max(1e-2 * pressure_noise(t, x)) {
                     return Some(x);
                 }
                 if f < 0.0 {
                     lo = x;
+                    lo_state = (px, dpx);
                 } else {
                     hi = x;
                 }
@@ -679,8 +681,13 @@ impl Iapws95 {
                     continue;
                 }
             }
-            if hi - lo <= 1e-14 * hi {
+            if hi - lo <= 1e-11 * hi {
                 break;
+            }
+            // p is concave on the vapour branch: its tangent at `lo` bounds it from above, so
+            // if even the tangent stays below p up to `hi`, there is no vapour root.
+            if lo > 0.0 && lo_state.0 + lo_state.1 * (hi - lo) < p {
+                return None;
             }
             x = 0.5 * (lo + hi);
         }
@@ -714,7 +721,7 @@ impl Iapws95 {
                 if best.is_none_or(|(bf, _)| f.abs() < bf) {
                     best = Some((f.abs(), x));
                 }
-                if f.abs() <= 1e-15 * p {
+                if f.abs() <= (1e-15 * p).max(1e-2 * pressure_noise(t, x)) {
                     return Some(x);
                 }
                 if f > 0.0 {
@@ -731,7 +738,7 @@ impl Iapws95 {
                     continue;
                 }
             }
-            if hi - lo <= 1e-14 * hi {
+            if hi - lo <= 1e-11 * hi {
                 break;
             }
             x = 0.5 * (lo + hi);
@@ -759,7 +766,7 @@ impl Iapws95 {
         for _ in 0..300 {
             let (px, dpx) = p_and_dp(t, x);
             let f = px - p;
-            if f.abs() <= 1e-15 * p {
+            if f.abs() <= (1e-15 * p).max(1e-2 * pressure_noise(t, x)) {
                 return Ok(x);
             }
             if f < 0.0 {

@@ -195,6 +195,13 @@ fn kij_entries(py: Python<'_>, kij: &Bound<'_, PyAny>, names: &[String], bank: &
                 v.extract::<(f64, f64)>()
                     .map_err(|_| invalid(py, "kij", "values must be k0 or (k0, k1) with k_ij = k0 + k1·T"))?
             };
+            if !(k0.is_finite() && k1.is_finite()) {
+                return Err(invalid(
+                    py,
+                    "kij",
+                    &format!("k0 = {k0}, k1 = {k1} for ({i}, {j}); finite values are required"),
+                ));
+            }
             out.push(vec![i as f64, j as f64, k0, k1]);
         }
         return Ok(out);
@@ -211,6 +218,13 @@ fn kij_entries(py: Python<'_>, kij: &Bound<'_, PyAny>, names: &[String], bank: &
             py,
             "kij",
             &format!("the matrix must be {nc}×{nc} for {nc} components"),
+        ));
+    }
+    if let Some(x) = m.iter().flatten().find(|x| !x.is_finite()) {
+        return Err(invalid(
+            py,
+            "kij",
+            &format!("{x} in the matrix; finite values are required"),
         ));
     }
     for i in 0..nc {
@@ -274,7 +288,15 @@ fn component_refs(
                     "tc" | "pc" | "acentric" => {
                         let x: f64 = v
                             .extract()
-                            .map_err(|_| invalid(py, "components", &format!("'{k}' must be a number")))?;
+                            .ok()
+                            .filter(|x: &f64| x.is_finite() && (*x > 0.0 || k == "acentric"))
+                            .ok_or_else(|| {
+                                invalid(
+                                    py,
+                                    "components",
+                                    &format!("'{k}' must be a finite number (> 0 for tc in K and pc in Pa)"),
+                                )
+                            })?;
                         obj.insert(k, serde_json::Value::from(x));
                     }
                     _ => {
@@ -754,6 +776,24 @@ fn bubble_dew_point<'py>(
 pub struct PyPhaseState {
     model: Arc<Model>,
     state: PhaseState,
+    ln_phi: Vec<f64>,
+}
+
+/// ln φ of a state on its own volume root (the root whose volume the state holds).
+fn state_ln_phi(py: Python<'_>, model: &Model, s: &PhaseState) -> PyResult<Vec<f64>> {
+    use tieline::model::{FugacityWork, LnPhi, Need, ln_phi};
+    let nc = model.num_components();
+    let mut w = FugacityWork::new(nc);
+    let mut best: Option<(f64, Vec<f64>)> = None;
+    for root in [RootChoice::Liquid, RootChoice::Vapor] {
+        let mut out = LnPhi::new(nc);
+        check(py, ln_phi(model, s.t, s.p, &s.n, root, Need::VALUES, &mut w, &mut out))?;
+        let d = (out.v - s.v).abs();
+        if best.as_ref().is_none_or(|(bd, _)| d < *bd) {
+            best = Some((d, out.ln_phi));
+        }
+    }
+    Ok(best.map(|b| b.1).unwrap_or_default())
 }
 
 #[pymethods]
@@ -773,9 +813,11 @@ impl PyPhaseState {
             py,
             PhaseState::new(&*model.inner, temperature, pressure, &amounts, root),
         )?;
+        let ln_phi = state_ln_phi(py, &model.inner, &state)?;
         Ok(PyPhaseState {
             model: model.inner.clone(),
             state,
+            ln_phi,
         })
     }
 
@@ -813,6 +855,30 @@ impl PyPhaseState {
     #[getter]
     fn molar_volume(&self) -> f64 {
         self.state.v / self.state.total()
+    }
+
+    /// Natural logarithms of the fugacity coefficients (needs no ideal-gas data).
+    #[getter]
+    fn ln_phi<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        records::arr(py, &self.ln_phi)
+    }
+
+    /// Fugacities f_i = x_i φ_i p, Pa.
+    #[getter]
+    fn fugacity<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        let x = self.state.composition();
+        let v: Vec<f64> = x
+            .iter()
+            .zip(&self.ln_phi)
+            .map(|(x, l)| x * l.exp() * self.state.p)
+            .collect();
+        PyArray1::from_vec(py, v)
+    }
+
+    /// Compressibility factor Z = pv/(RT).
+    #[getter]
+    fn z(&self) -> f64 {
+        self.state.p * self.state.v / (self.state.total() * tieline::substance::R * self.state.t)
     }
 
     /// "vapor" or "liquid" (the model's naming rule).
@@ -864,9 +930,11 @@ fn _state_from_json(py: Python<'_>, model: &str, state: &str) -> PyResult<PyPhas
     let m = check(py, Model::from_json(model))?;
     let s: PhaseState = serde_json::from_str(state)
         .map_err(|e| errors::to_py(py, &tieline::Error::Data(format!("phase state: {e}")), None))?;
+    let ln_phi = state_ln_phi(py, &m, &s)?;
     Ok(PyPhaseState {
         model: Arc::new(m),
         state: s,
+        ln_phi,
     })
 }
 
@@ -896,15 +964,18 @@ fn _phase_state<'py>(
     if amounts.len() != model.inner.num_components() {
         return Err(invalid(py, "amounts", "one amount per component is required"));
     }
+    let state = PhaseState {
+        t: temperature,
+        p: pressure,
+        n: amounts,
+        v: volume,
+        kind,
+    };
+    let ln_phi = state_ln_phi(py, &model.inner, &state)?;
     Ok(PyPhaseState {
         model: model.inner.clone(),
-        state: PhaseState {
-            t: temperature,
-            p: pressure,
-            n: amounts,
-            v: volume,
-            kind,
-        },
+        state,
+        ln_phi,
     })
 }
 

@@ -157,7 +157,7 @@ impl FlashBlock {
                     }
                 }
                 let d = &r.diagnostics;
-                self.vapor_fraction.push(r.vapor_fraction());
+                self.vapor_fraction.push(r.vapor_fraction() + 0.0);
                 self.residual.push(d.residual);
                 self.certificate.push(d.certificate.unwrap_or(f64::NAN));
                 self.gibbs.push(d.gibbs);

@@ -14,7 +14,7 @@ from typing import TYPE_CHECKING, Any, Dict, List, Optional, Tuple
 import numpy as np
 
 if TYPE_CHECKING:  # pragma: no cover
-    import pandas
+    import pandas  # type: ignore[import-untyped, unused-ignore]
 
     from ._core import Model, PhaseState
 

@@ -52,5 +52,5 @@ export MPLBACKEND=Agg
 (cd "$build" && "$py" -m pytest -c "$here/pyproject.toml" --rootdir "$here" -p no:cacheprovider "$here/tests")
 
 echo "== stubtest"
-(cd "$build" && "$py" -m mypy.stubtest tieline --allowlist "$here/stubtest-allowlist.txt" --cache-dir "$build/mypy-cache")
+(cd "$build" && "$py" -m mypy.stubtest tieline --allowlist "$here/stubtest-allowlist.txt")
 echo "== Python package: all checks passed; figures in $TIELINE_FIGURES_DIR"

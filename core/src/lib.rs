@@ -41,3 +41,8 @@ pub mod prelude {
     pub use crate::model::{CubicEos, CubicKind, FluidModel, PhaseKind, PhaseState, RootChoice};
     pub use crate::substance::{Component, DataBank};
 }
+
+/// The README's Rust examples, compiled and run as doc-tests.
+#[doc = include_str!("../../README.md")]
+#[cfg(doctest)]
+pub struct ReadmeDoctests;

@@ -7,6 +7,14 @@ use crate::error::{Error, Result};
 use crate::model::FluidModel;
 use rayon::prelude::*;
 
+/// Number of points per chunk of a batch of `npts` points on `threads` threads (about four
+/// chunks per thread). Each chunk is flashed in order by one fresh [`FlashContext`], so a
+/// batch's results depend on this partition only, never on which thread ran which chunk:
+/// other drivers of the same partition (the C ABI's scoped threads) give identical results.
+pub fn chunk_len(npts: usize, threads: usize) -> usize {
+    npts.div_ceil(threads.max(1) * 4).max(1)
+}
+
 /// Flashes `t.len()` points. `t` (K) and `p` (Pa) have one value per point; `feeds` holds
 /// either one feed of `nc` amounts (mol) shared by every point or one row of `nc` per point
 /// (row-major). `threads` = 0 uses rayon's global pool, otherwise a pool of that many threads.
@@ -47,7 +55,7 @@ pub fn flash_batch<M: FluidModel + ?Sized>(
     } else {
         threads
     };
-    let chunk = npts.div_ceil(nthreads.max(1) * 4).max(1);
+    let chunk = chunk_len(npts, nthreads);
     let run = || {
         (0..npts)
             .collect::<Vec<usize>>()

@@ -230,6 +230,9 @@ struct Split {
     phi_y: LnPhi,
     gibbs: f64,
     residual: f64,
+    /// Roots the Newton steps keep each phase on (`Stable` until first decided).
+    root_x: RootChoice,
+    root_y: RootChoice,
 }
 
 impl Split {
@@ -248,8 +251,8 @@ impl Split {
         self.omb = o.omb;
         self.x.copy_from_slice(&o.x);
         self.y.copy_from_slice(&o.y);
-        self.phi_x.clone_from(&o.phi_x);
-        self.phi_y.clone_from(&o.phi_y);
+        self.phi_x.copy_from(&o.phi_x);
+        self.phi_y.copy_from(&o.phi_y);
         self.gibbs = o.gibbs;
         self.residual = o.residual;
     }
@@ -276,8 +279,12 @@ pub struct FlashContext {
     prev_two_phase: bool,
     result: FlashResult,
     nc: usize,
+    /// Newton variables: y-phase amounts v and x-phase amounts l = z − v, both carried so
+    /// that a component almost wholly in one phase keeps its tiny amount in the other exactly.
     newton_v: Vec<f64>,
     newton_v0: Vec<f64>,
+    newton_l: Vec<f64>,
+    newton_l0: Vec<f64>,
 }
 
 impl FlashContext {
@@ -300,6 +307,8 @@ impl FlashContext {
         self.prev_two_phase = false;
         self.newton_v = vec![0.0; nc];
         self.newton_v0 = vec![0.0; nc];
+        self.newton_l = vec![0.0; nc];
+        self.newton_l0 = vec![0.0; nc];
         self.result.feed = vec![0.0; nc];
         self.result.phases = Vec::with_capacity(2);
     }
@@ -369,7 +378,11 @@ impl FlashContext {
     ) -> Result<bool> {
         let nc = self.nc;
         let z = self.ws.z.clone();
-        stability_with(model, t, p, &z, &opts.stability, &[], &mut self.ws, &mut self.stab)?;
+        let sopts = StabilityOptions {
+            early_exit: true,
+            ..opts.stability
+        };
+        stability_with(model, t, p, &z, &sopts, &[], &mut self.ws, &mut self.stab)?;
         diag.stability_iterations = self.stab.iterations;
         if self.stab.stable {
             return Ok(false);
@@ -432,7 +445,11 @@ impl FlashContext {
         let nc = self.nc;
         for attempt in 0..2 {
             let x = self.best.x.clone();
-            stability_with(model, t, p, &x, &opts.stability, &[], &mut self.ws, &mut self.cert)?;
+            let sopts = StabilityOptions {
+                early_exit: true,
+                ..opts.stability
+            };
+            stability_with(model, t, p, &x, &sopts, &[], &mut self.ws, &mut self.cert)?;
             diag.certificate_iterations += self.cert.iterations;
             diag.certificate = Some(self.cert.min_tpd);
             if self.cert.stable || attempt == 1 {
@@ -536,8 +553,27 @@ impl FlashContext {
         Ok(true)
     }
 
+    /// Sets the split's β, x, y from the current ln K by Rachford–Rice alone (no fugacity
+    /// evaluation). Returns `false` when no root exists.
+    fn rr_split(&mut self) -> bool {
+        let ws = &mut self.ws;
+        for i in 0..self.nc {
+            ws.k[i] = ws.lnk[i].exp();
+        }
+        let Ok(rr) = rachford_rice::solve(&ws.z, &ws.k, true) else {
+            return false;
+        };
+        let s = &mut self.split;
+        s.beta = rr.beta;
+        s.omb = rr.one_minus_beta;
+        rachford_rice::compositions(&ws.z, &ws.k, &rr, &mut s.x, &mut s.y);
+        normalise(&mut s.x);
+        normalise(&mut s.y);
+        true
+    }
+
     /// Two-phase split from `ws.lnk`. On `Converged`, `self.split` holds the split and
-    /// `prev_lnk` the K-values.
+    /// `prev_lnk` the K-values. A warm start goes straight to Newton.
     fn two_phase<M: FluidModel + ?Sized>(
         &mut self,
         model: &M,
@@ -548,18 +584,29 @@ impl FlashContext {
         diag: &mut Diagnostics,
     ) -> Result<SplitOutcome> {
         let nc = self.nc;
-        let mut ss_budget = if warm { 3 } else { opts.max_ss_iterations };
+        if warm {
+            if !self.rr_split() {
+                return Ok(SplitOutcome::Collapsed);
+            }
+            return match self.newton(model, t, p, opts, diag)? {
+                SplitOutcome::Converged => self.accept(),
+                other => Ok(other),
+            };
+        }
         let mut ss_done = 0usize;
         let mut last_g = f64::INFINITY;
         let mut last_err = f64::INFINITY;
-        let mut newton_tried = false;
+        let mut newton_tries = 0;
+        let mut next_newton = 0usize;
+        let mut evaluated = false;
         loop {
-            if !self.eval_split(model, t, p)? {
+            if !evaluated && !self.eval_split(model, t, p)? {
                 return Ok(SplitOutcome::Collapsed);
             }
+            evaluated = false;
             let err = self.split.residual;
             if err < opts.tolerance {
-                return self.accept(opts);
+                return self.accept();
             }
             let trivial = self
                 .ws
@@ -571,26 +618,25 @@ impl FlashContext {
             if trivial {
                 return Ok(SplitOutcome::Collapsed);
             }
-            // Switch to Newton once SS has done its cheap work, or on a warm start.
-            let slow = ss_done >= 4 && err > 0.5 * last_err;
-            if !newton_tried && (warm || err < 1e-4 || slow || ss_done >= 25) {
-                newton_tried = true;
+            // Switch to Newton once successive substitution has done its cheap work: the
+            // residual is small, or SS is slow (near-critical; Michelsen 1982b).
+            let slow = ss_done >= 3 && err > 0.6 * last_err;
+            if newton_tries < 3 && ss_done >= next_newton.max(3) && (err < 1e-3 || slow || ss_done >= next_newton + 15)
+            {
+                newton_tries += 1;
                 match self.newton(model, t, p, opts, diag)? {
-                    SplitOutcome::Converged => return self.accept(opts),
+                    SplitOutcome::Converged => return self.accept(),
                     SplitOutcome::Collapsed => return Ok(SplitOutcome::Collapsed),
                     SplitOutcome::NotConverged => {
-                        // Continue with (accelerated) successive substitution.
-                        ss_budget = opts.max_ss_iterations;
-                        if !self.eval_split(model, t, p)? {
-                            return Ok(SplitOutcome::Collapsed);
-                        }
+                        // Back to (accelerated) successive substitution from Newton's last
+                        // accepted point; Newton may be tried again later.
+                        next_newton = ss_done + 20;
+                        last_err = f64::INFINITY;
+                        continue;
                     }
                 }
             }
-            if ss_done >= ss_budget {
-                if warm {
-                    return Ok(SplitOutcome::NotConverged);
-                }
+            if ss_done >= opts.max_ss_iterations {
                 return Err(Error::not_converged(
                     "two-phase split",
                     vec![
@@ -605,12 +651,12 @@ impl FlashContext {
             ss_done += 1;
             diag.ss_iterations += 1;
             let ws = &mut self.ws;
-            // History of differences for the dominant-eigenvalue extrapolation.
             ws.hist.swap(0, 1);
             for i in 0..nc {
                 ws.hist[1][i] = ws.g[i] - ws.lnk[i];
                 ws.lnk[i] = ws.g[i];
             }
+            // Dominant-eigenvalue extrapolation every fifth step, kept only if G falls.
             if ss_done.is_multiple_of(5) {
                 let (mut num, mut den) = (0.0, 0.0);
                 for i in 0..nc {
@@ -627,7 +673,7 @@ impl FlashContext {
                     let g_before = self.split.gibbs.min(last_g);
                     if self.eval_split(model, t, p)? && self.split.gibbs < g_before {
                         diag.accelerations += 1;
-                        // Keep the extrapolated ln K; the next loop re-evaluates it.
+                        evaluated = true;
                     } else {
                         let ws = &mut self.ws;
                         ws.lnk.copy_from_slice(&ws.w_old);
@@ -639,7 +685,7 @@ impl FlashContext {
         }
     }
 
-    fn accept(&mut self, _opts: &FlashOptions) -> Result<SplitOutcome> {
+    fn accept(&mut self) -> Result<SplitOutcome> {
         let s = &self.split;
         let trivial = s.x.iter().zip(&s.y).all(|(a, b)| (a - b).abs() < 1e-9);
         if !(s.beta > 0.0 && s.omb > 0.0) || trivial {
@@ -649,8 +695,93 @@ impl FlashContext {
         Ok(SplitOutcome::Converged)
     }
 
+    /// Whether each phase of the split is on its least-Gibbs volume root. Resets a phase that
+    /// is not to `RootChoice::Stable` and returns `false`.
+    fn roots_still_stable<M: FluidModel + ?Sized>(&mut self, model: &M, t: f64, p: f64) -> Result<bool> {
+        let mut ok = true;
+        let s = &mut self.split;
+        for (comp, root) in [(&s.x, &mut s.root_x), (&s.y, &mut s.root_y)] {
+            if *root == RootChoice::Stable {
+                continue;
+            }
+            ln_phi(
+                model,
+                t,
+                p,
+                comp,
+                RootChoice::Stable,
+                Need::VALUES,
+                &mut self.ws.fw,
+                &mut self.ws.phi_a,
+            )?;
+            if self.ws.phi_a.two_roots && self.ws.phi_a.root != *root {
+                *root = RootChoice::Stable;
+                ok = false;
+            }
+        }
+        Ok(ok)
+    }
+
+    /// Sets the Newton point to v0 + α Δv, l0 − α Δv.
+    fn move_newton(&mut self, alpha: f64) {
+        for i in 0..self.nc {
+            self.newton_v[i] = self.newton_v0[i] + alpha * self.ws.step[i];
+            self.newton_l[i] = self.newton_l0[i] - alpha * self.ws.step[i];
+        }
+    }
+
+    /// Evaluates the split at y-phase amounts `newton_v` with composition derivatives: phase
+    /// compositions, ln φ, G, the gradient (into `ws.rhs`, negated) and the residual.
+    /// Returns `false` if a phase amount is not positive.
+    fn eval_newton<M: FluidModel + ?Sized>(&mut self, model: &M, t: f64, p: f64) -> Result<bool> {
+        let nc = self.nc;
+        let ws = &mut self.ws;
+        let s = &mut self.split;
+        let beta: f64 = self.newton_v.iter().sum();
+        let omb: f64 = self.newton_l.iter().sum();
+        if (0..nc).any(|i| ws.z[i] > 0.0 && !(self.newton_v[i] > 0.0 && self.newton_l[i] > 0.0)) {
+            return Ok(false);
+        }
+        if !(beta > 0.0 && omb > 0.0) {
+            return Ok(false);
+        }
+        for i in 0..nc {
+            s.y[i] = self.newton_v[i] / beta;
+            s.x[i] = self.newton_l[i] / omb;
+        }
+        // Each phase stays on the root it took at the previous step (one evaluation with
+        // derivatives instead of two); `newton` re-checks the choice at convergence.
+        ln_phi(model, t, p, &s.x, s.root_x, Need::COMPOSITION, &mut ws.fw, &mut s.phi_x)?;
+        ln_phi(model, t, p, &s.y, s.root_y, Need::COMPOSITION, &mut ws.fw, &mut s.phi_y)?;
+        if s.root_x == RootChoice::Stable {
+            s.root_x = s.phi_x.root;
+        }
+        if s.root_y == RootChoice::Stable {
+            s.root_y = s.phi_y.root;
+        }
+        s.beta = beta;
+        s.omb = omb;
+        s.gibbs = gibbs(&ws.z, s);
+        let mut err = 0.0f64;
+        for i in 0..nc {
+            if ws.z[i] > 0.0 {
+                let gi = (s.y[i].ln() + s.phi_y.ln_phi[i]) - (s.x[i].ln() + s.phi_x.ln_phi[i]);
+                ws.rhs[i] = -gi;
+                err = err.max(gi.abs());
+            } else {
+                ws.rhs[i] = 0.0;
+            }
+        }
+        s.residual = if err.is_finite() { err } else { f64::INFINITY };
+        Ok(true)
+    }
+
     /// Newton iterations on G in the y-phase amounts v_i = β y_i (per mol of feed) from the
-    /// current split.
+    /// current split's β and y: H Δv = −g with H_ij = ∂ln f_i^y/∂v_j + ∂ln f_i^x/∂l_j, a
+    /// Levenberg shift where H is not positive definite, a fraction-to-boundary rule and a
+    /// backtracking line search on G. Every candidate is evaluated with derivatives, so an
+    /// accepted one is ready for the next step. On return `ws.lnk` holds ln K of the last
+    /// accepted point.
     fn newton<M: FluidModel + ?Sized>(
         &mut self,
         model: &M,
@@ -665,164 +796,128 @@ impl FlashContext {
         }
         for i in 0..nc {
             self.newton_v[i] = self.split.beta * self.split.y[i];
+            self.newton_l[i] = self.split.omb * self.split.x[i];
         }
-        let mut iters = 0;
-        loop {
-            if iters >= opts.max_newton_iterations {
-                return Ok(SplitOutcome::NotConverged);
-            }
-            iters += 1;
-            diag.newton_iterations += 1;
-            // Evaluate both phases with composition derivatives at the current v.
-            let (beta, omb) = {
-                let ws = &mut self.ws;
-                let s = &mut self.split;
-                let beta: f64 = self.newton_v.iter().sum();
-                let omb: f64 = ws.z.iter().zip(&self.newton_v).map(|(z, v)| z - v).sum();
-                for i in 0..nc {
-                    s.y[i] = self.newton_v[i] / beta;
-                    s.x[i] = (ws.z[i] - self.newton_v[i]) / omb;
-                }
-                ln_phi(
-                    model,
-                    t,
-                    p,
-                    &s.x,
-                    RootChoice::Stable,
-                    Need::COMPOSITION,
-                    &mut ws.fw,
-                    &mut s.phi_x,
-                )?;
-                ln_phi(
-                    model,
-                    t,
-                    p,
-                    &s.y,
-                    RootChoice::Stable,
-                    Need::COMPOSITION,
-                    &mut ws.fw,
-                    &mut s.phi_y,
-                )?;
-                s.beta = beta;
-                s.omb = omb;
-                s.gibbs = gibbs(&ws.z, s);
-                (beta, omb)
-            };
-            let ws = &mut self.ws;
-            let s = &mut self.split;
-            let mut err = 0.0f64;
-            for i in 0..nc {
-                if ws.z[i] > 0.0 {
-                    let gi = (s.y[i].ln() + s.phi_y.ln_phi[i]) - (s.x[i].ln() + s.phi_x.ln_phi[i]);
-                    ws.rhs[i] = -gi;
-                    err = err.max(gi.abs());
-                    ws.lnk[i] = s.phi_x.ln_phi[i] - s.phi_y.ln_phi[i];
+        self.split.root_x = RootChoice::Stable;
+        self.split.root_y = RootChoice::Stable;
+        if !self.eval_newton(model, t, p)? {
+            return Ok(SplitOutcome::NotConverged);
+        }
+        let set_lnk = |me: &mut Self| {
+            for i in 0..me.nc {
+                me.ws.lnk[i] = if me.ws.z[i] > 0.0 {
+                    me.split.phi_x.ln_phi[i] - me.split.phi_y.ln_phi[i]
                 } else {
-                    ws.rhs[i] = 0.0;
+                    0.0
+                };
+            }
+        };
+        set_lnk(self);
+        for _ in 0..opts.max_newton_iterations {
+            let err0 = self.split.residual;
+            if err0 < opts.tolerance {
+                if self.roots_still_stable(model, t, p)? {
+                    return Ok(SplitOutcome::Converged);
                 }
+                // A phase sits on the wrong root: re-evaluate on the stable ones and go on.
+                if !self.eval_newton(model, t, p)? {
+                    return Ok(SplitOutcome::NotConverged);
+                }
+                set_lnk(self);
+                continue;
             }
-            s.residual = err;
-            if err < opts.tolerance {
-                return Ok(SplitOutcome::Converged);
-            }
-            if !err.is_finite() {
+            if !err0.is_finite() {
                 return Ok(SplitOutcome::NotConverged);
             }
-            for i in 0..nc {
-                for j in 0..nc {
-                    let h = if ws.z[i] > 0.0 && ws.z[j] > 0.0 {
-                        let mut h =
-                            s.phi_y.dn[i * nc + j] / beta + s.phi_x.dn[i * nc + j] / omb - 1.0 / beta - 1.0 / omb;
-                        if i == j {
-                            h += 1.0 / self.newton_v[i] + 1.0 / (ws.z[i] - self.newton_v[i]);
-                        }
-                        h
-                    } else if i == j {
-                        1.0
-                    } else {
-                        0.0
-                    };
-                    ws.hess[i * nc + j] = h;
+            diag.newton_iterations += 1;
+            {
+                let ws = &mut self.ws;
+                let s = &self.split;
+                let (beta, omb) = (s.beta, s.omb);
+                for i in 0..nc {
+                    for j in 0..nc {
+                        ws.hess[i * nc + j] = if ws.z[i] > 0.0 && ws.z[j] > 0.0 {
+                            let mut h =
+                                s.phi_y.dn[i * nc + j] / beta + s.phi_x.dn[i * nc + j] / omb - 1.0 / beta - 1.0 / omb;
+                            if i == j {
+                                h += 1.0 / self.newton_v[i] + 1.0 / self.newton_l[i];
+                            }
+                            h
+                        } else if i == j {
+                            1.0
+                        } else {
+                            0.0
+                        };
+                    }
+                }
+                ws.step.copy_from_slice(&ws.rhs);
+                if shifted_cholesky_solve(&ws.hess, nc, &mut ws.step, &mut ws.chol, 0.0).is_none() {
+                    return Ok(SplitOutcome::NotConverged);
                 }
             }
-            ws.step.copy_from_slice(&ws.rhs);
-            if shifted_cholesky_solve(&ws.hess, nc, &mut ws.step, &mut ws.chol, 0.0).is_none() {
-                return Ok(SplitOutcome::NotConverged);
-            }
-            // Keep 0 < v_i < z_i (fraction to the boundary 0.9), then backtrack on G.
+            // Keep 0 < v_i < z_i (fraction to the boundary 0.9).
             let mut alpha: f64 = 1.0;
             for i in 0..nc {
-                if ws.z[i] <= 0.0 {
+                let z = self.ws.z[i];
+                if z <= 0.0 {
                     continue;
                 }
-                let (v, dv) = (self.newton_v[i], ws.step[i]);
-                if v + dv <= 0.0 {
+                let (v, l, dv) = (self.newton_v[i], self.newton_l[i], self.ws.step[i]);
+                if dv < 0.0 && v + dv <= 0.0 {
                     alpha = alpha.min(0.9 * v / -dv);
-                } else if v + dv >= ws.z[i] {
-                    alpha = alpha.min(0.9 * (ws.z[i] - v) / dv);
+                } else if dv > 0.0 && l - dv <= 0.0 {
+                    alpha = alpha.min(0.9 * l / dv);
                 }
             }
-            let g0 = s.gibbs;
+            let g0 = self.split.gibbs;
             self.newton_v0.copy_from_slice(&self.newton_v);
+            self.newton_l0.copy_from_slice(&self.newton_l);
             let mut accepted = false;
             for _ in 0..12 {
-                for i in 0..nc {
-                    self.newton_v[i] = self.newton_v0[i] + alpha * self.ws.step[i];
-                }
-                let beta: f64 = self.newton_v.iter().sum();
-                let omb: f64 = self.ws.z.iter().zip(&self.newton_v).map(|(z, v)| z - v).sum();
-                if !(beta > 0.0 && omb > 0.0) {
-                    alpha *= 0.5;
-                    continue;
-                }
-                let s = &mut self.split;
-                for i in 0..nc {
-                    s.y[i] = self.newton_v[i] / beta;
-                    s.x[i] = (self.ws.z[i] - self.newton_v[i]) / omb;
-                }
-                s.beta = beta;
-                s.omb = omb;
-                ln_phi(
-                    model,
-                    t,
-                    p,
-                    &s.x,
-                    RootChoice::Stable,
-                    Need::VALUES,
-                    &mut self.ws.fw,
-                    &mut s.phi_x,
-                )?;
-                ln_phi(
-                    model,
-                    t,
-                    p,
-                    &s.y,
-                    RootChoice::Stable,
-                    Need::VALUES,
-                    &mut self.ws.fw,
-                    &mut s.phi_y,
-                )?;
-                let g1 = gibbs(&self.ws.z, s);
-                // Near convergence G changes by round-off only: accept any step there.
-                if g1 <= g0 + 1e-13 * g0.abs().max(1.0) || err < 1e-7 {
-                    accepted = true;
-                    break;
+                self.move_newton(alpha);
+                if self.eval_newton(model, t, p)? {
+                    let g1 = self.split.gibbs;
+                    let err1 = self.split.residual;
+                    // Near convergence G changes by round-off only: a falling residual suffices.
+                    if g1 <= g0 + 1e-14 * g0.abs().max(1.0) || (err0 < 1e-6 && err1 < err0) {
+                        accepted = true;
+                        break;
+                    }
                 }
                 alpha *= 0.5;
             }
             if !accepted {
-                self.newton_v.copy_from_slice(&self.newton_v0);
+                // Restore the last accepted point (its ln K is still in ws.lnk).
+                self.move_newton(0.0);
                 return Ok(SplitOutcome::NotConverged);
             }
-            let tiny = self
-                .newton_v
-                .iter()
-                .zip(&self.ws.z)
-                .any(|(v, z)| *z > 0.0 && (*v <= 0.0 || *v >= *z));
-            if tiny {
-                return Ok(SplitOutcome::Collapsed);
+            // A full step that barely reduced the residual means a long, nearly flat valley of
+            // G (close to a critical point): expand the step while G keeps falling.
+            if alpha == 1.0 && self.split.residual > 0.5 * err0 {
+                let mut best_alpha = 1.0;
+                let mut best_g = self.split.gibbs;
+                let mut a = 2.0;
+                for _ in 0..30 {
+                    self.move_newton(a);
+                    if !self.eval_newton(model, t, p)? || self.split.gibbs >= best_g {
+                        break;
+                    }
+                    best_g = self.split.gibbs;
+                    best_alpha = a;
+                    a *= 2.0;
+                }
+                self.move_newton(best_alpha);
+                if !self.eval_newton(model, t, p)? {
+                    return Ok(SplitOutcome::NotConverged);
+                }
             }
+            set_lnk(self);
         }
+        Ok(if self.split.residual < opts.tolerance {
+            SplitOutcome::Converged
+        } else {
+            SplitOutcome::NotConverged
+        })
     }
 
     /// Writes the result into `self.result`, reusing its storage.

@@ -30,6 +30,8 @@ pub struct EquilibriumWork {
     pub(crate) phi_a: LnPhi,
     pub(crate) phi_b: LnPhi,
     pub(crate) z: Vec<f64>,
+    /// Composition of the phase under a stability test (kept apart from the flash feed `z`).
+    pub(crate) sz: Vec<f64>,
     pub(crate) d: Vec<f64>,
     pub(crate) w: Vec<f64>,
     pub(crate) w_old: Vec<f64>,
@@ -65,6 +67,7 @@ impl EquilibriumWork {
         self.phi_b = LnPhi::new(nc);
         for v in [
             &mut self.z,
+            &mut self.sz,
             &mut self.d,
             &mut self.w,
             &mut self.w_old,

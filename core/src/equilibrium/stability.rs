@@ -53,6 +53,9 @@ pub struct StabilityOptions {
     pub trials: TrialSet,
     /// A stationary point counts as unstable if tpd < −`threshold` (dimensionless).
     pub threshold: f64,
+    /// Stop at the first converged stationary point with tpd < −threshold instead of
+    /// running every trial (enough to prove instability; the flash uses it).
+    pub early_exit: bool,
 }
 
 impl Default for StabilityOptions {
@@ -63,6 +66,7 @@ impl Default for StabilityOptions {
             max_iterations: 100,
             trials: TrialSet::default(),
             threshold: 1e-10,
+            early_exit: false,
         }
     }
 }
@@ -108,7 +112,7 @@ pub fn wilson_ln_k<M: FluidModel + ?Sized>(model: &M, t: f64, p: f64, out: &mut 
     }
 }
 
-/// Tests the stability of a phase of amounts `n` (mol) at (T [K], p [Pa]).
+/// Tests the stability of a phase of amounts `n` (mol) at (T (K), p (Pa)).
 pub fn stability<M: FluidModel + ?Sized>(
     model: &M,
     t: f64,
@@ -144,21 +148,21 @@ pub(crate) fn stability_with<M: FluidModel + ?Sized>(
     res.trivial_trials = 0;
     res.unconverged_trials = 0;
     for i in 0..nc {
-        ws.z[i] = n[i] / ntot;
+        ws.sz[i] = n[i] / ntot;
     }
     ln_phi(
         model,
         t,
         p,
-        &ws.z,
+        &ws.sz,
         RootChoice::Stable,
         Need::VALUES,
         &mut ws.fw,
         &mut ws.phi_a,
     )?;
     for i in 0..nc {
-        ws.d[i] = if ws.z[i] > 0.0 {
-            ws.z[i].ln() + ws.phi_a.ln_phi[i]
+        ws.d[i] = if ws.sz[i] > 0.0 {
+            ws.sz[i].ln() + ws.phi_a.ln_phi[i]
         } else {
             f64::NEG_INFINITY
         };
@@ -170,12 +174,12 @@ pub(crate) fn stability_with<M: FluidModel + ?Sized>(
         if k < trials {
             let (kind, idx) = ws.trial_kinds[k];
             for i in 0..nc {
-                ws.w[i] = if ws.z[i] > 0.0 {
+                ws.w[i] = if ws.sz[i] > 0.0 {
                     match kind {
-                        Trial::Vapor => ws.z[i] * ws.lnk[i].exp(),
-                        Trial::Liquid => ws.z[i] * (-ws.lnk[i]).exp(),
-                        Trial::VaporCube => ws.z[i] * (ws.lnk[i] / 3.0).exp(),
-                        Trial::LiquidCube => ws.z[i] * (-ws.lnk[i] / 3.0).exp(),
+                        Trial::Vapor => ws.sz[i] * ws.lnk[i].exp(),
+                        Trial::Liquid => ws.sz[i] * (-ws.lnk[i]).exp(),
+                        Trial::VaporCube => ws.sz[i] * (ws.lnk[i] / 3.0).exp(),
+                        Trial::LiquidCube => ws.sz[i] * (-ws.lnk[i] / 3.0).exp(),
                         Trial::Pure => {
                             if i == idx {
                                 1.0 - 1e-6
@@ -191,7 +195,7 @@ pub(crate) fn stability_with<M: FluidModel + ?Sized>(
         } else {
             let e = extra_trials[k - trials];
             for i in 0..nc {
-                ws.w[i] = if ws.z[i] > 0.0 { e[i].max(1e-12) } else { 0.0 };
+                ws.w[i] = if ws.sz[i] > 0.0 { e[i].max(1e-12) } else { 0.0 };
             }
         }
         let outcome = run_trial(model, t, p, opts, ws)?;
@@ -205,26 +209,21 @@ pub(crate) fn stability_with<M: FluidModel + ?Sized>(
                         continue;
                     }
                 }
-                record_point(res, ws, nc, outcome, opts);
+                record_point(res, ws, nc, outcome);
+                if opts.early_exit && outcome.status == TrialStatus::Converged && outcome.tpd < -opts.threshold {
+                    break;
+                }
             }
         }
     }
     res.points.sort_by(|a, b| a.tpd.total_cmp(&b.tpd));
-    res.min_tpd = res.points.first().map_or(0.0, |p| p.tpd.min(0.0f64.max(p.tpd)));
-    if let Some(first) = res.points.first() {
-        res.min_tpd = first.tpd;
-    }
+    // `+ 0.0` turns a −0.0 (ΣW = 1 exactly) into 0.0.
+    res.min_tpd = res.points.first().map_or(0.0, |p| p.tpd + 0.0);
     res.stable = res.min_tpd >= -opts.threshold;
     Ok(())
 }
 
-fn record_point(
-    res: &mut StabilityResult,
-    ws: &EquilibriumWork,
-    nc: usize,
-    outcome: TrialOutcome,
-    _opts: &StabilityOptions,
-) {
+fn record_point(res: &mut StabilityResult, ws: &EquilibriumWork, nc: usize, outcome: TrialOutcome) {
     let sw: f64 = ws.w.iter().sum();
     // Merge with an existing point of the same composition.
     for pt in res.points.iter_mut() {
@@ -238,7 +237,6 @@ fn record_point(
             return;
         }
     }
-    // Reuse a spare point's storage when available.
     let composition: Vec<f64> = ws.w.iter().map(|w| w / sw).collect();
     res.points.push(StationaryPoint {
         composition,
@@ -275,17 +273,17 @@ fn build_trials<M: FluidModel + ?Sized>(
         ws.trial_kinds.push((Trial::LiquidCube, 0));
     }
     if ts.pure && nc > 1 {
-        let active = (0..nc).filter(|&i| ws.z[i] > 0.0).count();
+        let active = (0..nc).filter(|&i| ws.sz[i] > 0.0).count();
         if active > 1 {
             if active <= ts.pure_limit {
                 for i in 0..nc {
-                    if ws.z[i] > 0.0 {
+                    if ws.sz[i] > 0.0 {
                         ws.trial_kinds.push((Trial::Pure, i));
                     }
                 }
             } else {
                 let by_tc = |i: &usize| model.critical_constants(*i).tc;
-                let act = || (0..nc).filter(|&i| ws.z[i] > 0.0);
+                let act = || (0..nc).filter(|&i| ws.sz[i] > 0.0);
                 let light = act().min_by(|a, b| by_tc(a).total_cmp(&by_tc(b))).unwrap_or(0);
                 let heavy = act().max_by(|a, b| by_tc(a).total_cmp(&by_tc(b))).unwrap_or(0);
                 ws.trial_kinds.push((Trial::Pure, light));
@@ -319,57 +317,61 @@ fn run_trial<M: FluidModel + ?Sized>(
     opts: &StabilityOptions,
     ws: &mut EquilibriumWork,
 ) -> Result<TrialOutcome> {
-    let nc = ws.z.len();
+    let nc = ws.sz.len();
     let mut iterations = 0;
     let mut tm_prev = f64::INFINITY;
-    let mut liquid_like = false;
     let mut last_tpd = f64::INFINITY;
+    // Whether ws.phi_b already holds ln φ (and, if `have_dn`, its derivatives) at ws.w.
+    let mut evaluated = false;
+    let mut have_dn = false;
     while iterations < opts.max_iterations {
         iterations += 1;
         let newton = iterations > opts.ss_steps;
-        let need = if newton { Need::COMPOSITION } else { Need::VALUES };
-        eval_trial(model, t, p, need, ws)?;
-        liquid_like = ws.phi_b.liquid_like;
+        if !evaluated || (newton && !have_dn) {
+            let need = if newton { Need::COMPOSITION } else { Need::VALUES };
+            eval_trial(model, t, p, need, &ws.w, &mut ws.x, &mut ws.fw, &mut ws.phi_b)?;
+            have_dn = newton;
+        }
+        evaluated = false;
+        let liquid_like = ws.phi_b.liquid_like;
         // Residuals h_i = ln W_i + ln φ_i(W) − d_i, and tm.
-        let (mut err, mut tm, mut sw) = (0.0f64, 1.0, 0.0);
+        let (mut err, mut tm, mut sw, mut bt) = (0.0f64, 1.0, 0.0, 0.0);
         for i in 0..nc {
-            if ws.z[i] > 0.0 {
+            if ws.sz[i] > 0.0 {
                 let h = ws.w[i].ln() + ws.phi_b.ln_phi[i] - ws.d[i];
                 ws.g[i] = h;
                 err = err.max(h.abs());
                 tm += ws.w[i] * (h - 1.0);
                 sw += ws.w[i];
+                bt += (ws.w[i] - ws.sz[i]) * (ws.w[i].ln() - ws.sz[i].ln());
             } else {
                 ws.g[i] = 0.0;
             }
         }
         last_tpd = -sw.ln();
-        // Trivial-solution test (Michelsen & Mollerup): r = 2 tm/β_t → 1 near W = z.
-        let mut bt = 0.0;
-        for i in 0..nc {
-            if ws.z[i] > 0.0 {
-                bt += (ws.w[i] - ws.z[i]) * (ws.w[i].ln() - ws.z[i].ln());
-            }
-        }
-        if bt < 1e-8 || (bt < 1e-3 && (2.0 * tm / bt - 1.0).abs() < 0.2 && iterations > 1) {
-            return Ok(TrialOutcome {
-                status: TrialStatus::Trivial,
-                tpd: 0.0,
-                iterations,
-                liquid_like,
-            });
+        let outcome = |status| TrialOutcome {
+            status,
+            tpd: if status == TrialStatus::Trivial { 0.0 } else { last_tpd },
+            iterations,
+            liquid_like,
+        };
+        // Trivial-solution test (Michelsen & Mollerup 2007, ch. 10): with
+        // β_t = Σ (W_i − z_i)(ln W_i − ln z_i), r = 2 tm/β_t tends to 1 near W = z.
+        if bt < 1e-8 || (iterations > 1 && bt < 5e-3 && (2.0 * tm / bt - 1.0).abs() < 0.2) {
+            return Ok(outcome(TrialStatus::Trivial));
         }
         if err < opts.tolerance {
-            return Ok(TrialOutcome {
-                status: TrialStatus::Converged,
-                tpd: last_tpd,
-                iterations,
-                liquid_like,
-            });
+            return Ok(outcome(TrialStatus::Converged));
+        }
+        // A trial that has settled next to a stationary point of clearly positive distance
+        // (tm ≈ 1 − ΣW, tm no longer falling) cannot prove instability: stop it there
+        // (common practice, no source).
+        if iterations >= 4 && tm > 1e-2 && (tm - (1.0 - sw)).abs() < 1e-2 * tm && (tm_prev - tm).abs() < 1e-2 * tm {
+            return Ok(outcome(TrialStatus::Converged));
         }
         if !newton {
             for i in 0..nc {
-                if ws.z[i] > 0.0 {
+                if ws.sz[i] > 0.0 {
                     ws.w[i] = (ws.d[i] - ws.phi_b.ln_phi[i]).exp();
                 }
             }
@@ -377,87 +379,102 @@ fn run_trial<M: FluidModel + ?Sized>(
             continue;
         }
         // Newton in α = 2√W: gradient g_i = √W_i h_i,
-        // H_ij = δ_ij + √(W_i W_j) ∂ln φ_i/∂n_j + δ_ij h_i/2.
+        // H_ij = δ_ij + √(W_i W_j) ∂ln φ_i/∂n_j + δ_ij h_i/2, with a Levenberg shift raised
+        // until tm decreases (trust region).
         for i in 0..nc {
             let si = ws.w[i].sqrt();
             ws.rhs[i] = -si * ws.g[i];
             for j in 0..nc {
-                let sj = ws.w[j].sqrt();
-                let mut hij = si * sj * ws.phi_b.dn[i * nc + j];
-                if i == j {
-                    hij += 1.0 + 0.5 * ws.g[i];
-                }
-                if ws.z[i] <= 0.0 || ws.z[j] <= 0.0 {
-                    hij = if i == j { 1.0 } else { 0.0 };
-                }
-                ws.hess[i * nc + j] = hij;
+                ws.hess[i * nc + j] = if ws.sz[i] <= 0.0 || ws.sz[j] <= 0.0 {
+                    if i == j { 1.0 } else { 0.0 }
+                } else {
+                    let mut hij = si * ws.w[j].sqrt() * ws.phi_b.dn[i * nc + j];
+                    if i == j {
+                        hij += 1.0 + 0.5 * ws.g[i];
+                    }
+                    hij
+                };
             }
         }
-        ws.step.copy_from_slice(&ws.rhs);
         let mut mu = 0.0;
         let mut accepted = false;
+        ws.w_old.copy_from_slice(&ws.w);
         for _ in 0..8 {
             ws.step.copy_from_slice(&ws.rhs);
             let Some(used) = shifted_cholesky_solve(&ws.hess, nc, &mut ws.step, &mut ws.chol, mu) else {
                 break;
             };
-            // Candidate W from α + Δα.
             for i in 0..nc {
-                ws.w_old[i] = ws.w[i];
-                if ws.z[i] > 0.0 {
-                    let a = 2.0 * ws.w[i].sqrt() + ws.step[i];
+                if ws.sz[i] > 0.0 {
+                    let a = 2.0 * ws.w_old[i].sqrt() + ws.step[i];
                     ws.w[i] = (0.25 * a * a).max(1e-300);
                 }
             }
-            eval_trial(model, t, p, Need::VALUES, ws)?;
+            // The candidate is evaluated with derivatives, ready for the next step.
+            eval_trial(
+                model,
+                t,
+                p,
+                Need::COMPOSITION,
+                &ws.w,
+                &mut ws.x,
+                &mut ws.fw,
+                &mut ws.phi_a,
+            )?;
             let mut tm_new = 1.0;
             for i in 0..nc {
-                if ws.z[i] > 0.0 {
-                    tm_new += ws.w[i] * (ws.w[i].ln() + ws.phi_b.ln_phi[i] - ws.d[i] - 1.0);
+                if ws.sz[i] > 0.0 {
+                    tm_new += ws.w[i] * (ws.w[i].ln() + ws.phi_a.ln_phi[i] - ws.d[i] - 1.0);
                 }
             }
             if tm_new.is_finite() && tm_new <= tm + 1e-12 * tm.abs().max(1.0) {
                 accepted = true;
-                tm_prev = tm_new;
+                std::mem::swap(&mut ws.phi_a, &mut ws.phi_b);
+                evaluated = true;
+                have_dn = true;
                 break;
             }
-            ws.w.copy_from_slice(&ws.w_old);
             mu = if used == 0.0 { 1.0 } else { used * 10.0 };
         }
         if !accepted {
-            // Fall back to one successive-substitution step (never increases tm).
+            // Fall back to one successive-substitution step from the old point (ws.phi_b
+            // still holds ln φ there); SS never increases tm.
             for i in 0..nc {
-                if ws.z[i] > 0.0 {
+                if ws.sz[i] > 0.0 {
                     ws.w[i] = (ws.d[i] - ws.phi_b.ln_phi[i]).exp();
                 }
             }
         }
-        let _ = tm_prev;
+        tm_prev = tm;
     }
     Ok(TrialOutcome {
         status: TrialStatus::Unconverged,
         tpd: last_tpd,
         iterations,
-        liquid_like,
+        liquid_like: ws.phi_b.liquid_like,
     })
 }
 
-fn eval_trial<M: FluidModel + ?Sized>(model: &M, t: f64, p: f64, need: Need, ws: &mut EquilibriumWork) -> Result<()> {
-    let sw: f64 = ws.w.iter().sum();
-    let nc = ws.w.len();
-    for i in 0..nc {
-        ws.x[i] = ws.w[i] / sw;
+fn eval_trial<M: FluidModel + ?Sized>(
+    model: &M,
+    t: f64,
+    p: f64,
+    need: Need,
+    w: &[f64],
+    x: &mut [f64],
+    fw: &mut crate::model::FugacityWork,
+    out: &mut LnPhi,
+) -> Result<()> {
+    let sw: f64 = w.iter().sum();
+    for (xi, wi) in x.iter_mut().zip(w) {
+        *xi = wi / sw;
     }
-    ln_phi(model, t, p, &ws.x, RootChoice::Stable, need, &mut ws.fw, &mut ws.phi_b)?;
+    ln_phi(model, t, p, x, RootChoice::Stable, need, fw, out)?;
     if need.composition {
         // ∂ln φ/∂n at total amount ΣW: scale the unit-amount derivative by 1/ΣW.
-        for v in ws.phi_b.dn.iter_mut() {
+        for v in out.dn.iter_mut() {
             *v /= sw;
         }
     }
     Ok(())
 }
-
-/// Keeps `LnPhi` in the public path of this module's docs.
-#[allow(dead_code)]
-fn _doc(_: &LnPhi) {}

@@ -623,16 +623,20 @@ impl FluidModel for CubicEos {
             0.0
         };
         let mut out = VolumeRoots::default();
-        let zs: Vec<f64> = z[..count]
-            .iter()
-            .copied()
-            .filter(|&zz| zz > b && zz.is_finite())
-            .collect();
-        let pick: &[f64] = match zs.len() {
-            0 => &[],
-            1 => &zs[..1],
-            _ => &[zs[0], zs[zs.len() - 1]],
-        };
+        // Physical roots (Z > B), smallest and largest; the middle root of three is unstable.
+        let mut zs = [0.0; 3];
+        let mut nz = 0;
+        for &zz in &z[..count] {
+            if zz > b && zz.is_finite() {
+                zs[nz] = zz;
+                nz += 1;
+            }
+        }
+        if nz == 3 {
+            zs[1] = zs[2];
+            nz = 2;
+        }
+        let pick = &zs[..nz];
         for &zz in pick {
             let v = zz * ntot * rt / p - c;
             if v > 0.0 {

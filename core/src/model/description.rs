@@ -75,7 +75,12 @@ impl ModelDescription {
     /// Builds the model, looking names up in `bank`.
     pub fn build(&self, bank: &DataBank) -> Result<Model> {
         match self {
-            ModelDescription::Cubic { kind, components, kij, volume_shift } => {
+            ModelDescription::Cubic {
+                kind,
+                components,
+                kij,
+                volume_shift,
+            } => {
                 let mut comps = Vec::with_capacity(components.len());
                 for c in components {
                     match c {
@@ -99,7 +104,10 @@ impl ModelDescription {
                 let mut k = KijMatrix::zeros(nc);
                 for row in kij {
                     if row.len() != 3 && row.len() != 4 {
-                        return Err(Error::invalid("kij", format!("entry {row:?}; [i, j, k0] or [i, j, k0, k1] is required")));
+                        return Err(Error::invalid(
+                            "kij",
+                            format!("entry {row:?}; [i, j, k0] or [i, j, k0, k1] is required"),
+                        ));
                     }
                     let idx = |x: f64| -> Result<usize> {
                         if x >= 0.0 && x.fract() == 0.0 && (x as usize) < nc {
@@ -115,7 +123,10 @@ impl ModelDescription {
                     None => {}
                     Some(ShiftSpec::Named(s)) if s == "peneloux" => m = m.with_peneloux_estimate()?,
                     Some(ShiftSpec::Named(s)) => {
-                        return Err(Error::invalid("volume_shift", format!("'{s}'; \"peneloux\" or a list of values is required")));
+                        return Err(Error::invalid(
+                            "volume_shift",
+                            format!("'{s}'; \"peneloux\" or a list of values is required"),
+                        ));
                     }
                     Some(ShiftSpec::Values(v)) => m = m.with_volume_shift(v.clone())?,
                 }

@@ -43,10 +43,11 @@ impl Need {
 }
 
 /// Which volume root to evaluate a phase on.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, serde::Serialize, serde::Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default, serde::Serialize, serde::Deserialize)]
 #[serde(rename_all = "snake_case")]
 pub enum RootChoice {
     /// The root of least Gibbs energy (the stable one when there are two).
+    #[default]
     Stable,
     /// The smallest volume root (liquid-like); the only root if there is one.
     Liquid,
@@ -75,6 +76,9 @@ pub struct LnPhi {
     pub g_res: f64,
     /// Whether the root taken had a competitor (two roots existed).
     pub two_roots: bool,
+    /// Which of two roots was taken (`Liquid` = smaller volume, `Vapor` = larger), or
+    /// `Stable` when there was only one.
+    pub root: RootChoice,
     /// Whether the phase is liquid-like by the model's rule.
     pub liquid_like: bool,
 }
@@ -85,6 +89,21 @@ impl LnPhi {
         let mut s = LnPhi::default();
         s.resize(nc);
         s
+    }
+
+    /// Copies `other` into `self` without allocating when the sizes match.
+    pub fn copy_from(&mut self, other: &LnPhi) {
+        self.v = other.v;
+        self.z = other.z;
+        copy_vec(&mut self.ln_phi, &other.ln_phi);
+        copy_vec(&mut self.dn, &other.dn);
+        copy_vec(&mut self.dt, &other.dt);
+        copy_vec(&mut self.dp, &other.dp);
+        copy_vec(&mut self.vbar, &other.vbar);
+        self.g_res = other.g_res;
+        self.two_roots = other.two_roots;
+        self.root = other.root;
+        self.liquid_like = other.liquid_like;
     }
 
     fn resize(&mut self, nc: usize) {
@@ -103,6 +122,8 @@ impl LnPhi {
 pub struct FugacityWork {
     /// Helmholtz derivatives storage.
     pub derivs: HelmholtzDerivs,
+    /// A second store, for comparing two volume roots without re-evaluation.
+    pub spare: HelmholtzDerivs,
 }
 
 impl FugacityWork {
@@ -110,11 +131,12 @@ impl FugacityWork {
     pub fn new(nc: usize) -> Self {
         FugacityWork {
             derivs: HelmholtzDerivs::new(nc),
+            spare: HelmholtzDerivs::new(nc),
         }
     }
 }
 
-/// Evaluates ln φ (and the requested derivatives) of a phase at (T [K], p [Pa], n [mol]) on
+/// Evaluates ln φ (and the requested derivatives) of a phase at (T (K), p (Pa), n (mol)) on
 /// the chosen root. Allocation-free once `work` and `out` have been sized.
 pub fn ln_phi<M: FluidModel + ?Sized>(
     model: &M,
@@ -132,25 +154,40 @@ pub fn ln_phi<M: FluidModel + ?Sized>(
     let ntot = check::amounts(n, nc)?;
     out.resize(nc);
     let roots = model.volume_roots(t, p, n, &mut work.derivs)?;
+    out.two_roots = roots.count == 2;
+    let mneed = Need {
+        pressure: false,
+        ..need
+    };
+    out.root = match (root, roots.count) {
+        (_, 1) => RootChoice::Stable,
+        (RootChoice::Stable, _) => RootChoice::Stable, // decided below
+        (r, _) => r,
+    };
     let v = match (root, roots.count) {
         (_, 1) => roots.v[0],
         (RootChoice::Liquid, _) => roots.v[0],
         (RootChoice::Vapor, _) => roots.v[1],
         (RootChoice::Stable, _) => {
-            // Least G^r/RT = F + (Z − 1) n − n ln Z over the roots.
-            let mut best = (f64::INFINITY, roots.v[0]);
-            for &v in roots.as_slice() {
-                model.residual(t, v, n, Need::VALUES, &mut work.derivs)?;
+            // Least G^r/RT = F + (Z − 1) n − n ln Z over the two roots; both are evaluated
+            // with the requested derivatives, and the loser's store is discarded.
+            let g = |d: &HelmholtzDerivs, v: f64| {
                 let z = p * v / (ntot * R * t);
-                let g = work.derivs.f + (z - 1.0) * ntot - ntot * z.ln();
-                if g < best.0 {
-                    best = (g, v);
-                }
-            }
-            best.1
+                d.f + (z - 1.0) * ntot - ntot * z.ln()
+            };
+            model.residual(t, roots.v[0], n, mneed, &mut work.derivs)?;
+            model.residual(t, roots.v[1], n, mneed, &mut work.spare)?;
+            let v = if g(&work.spare, roots.v[1]) < g(&work.derivs, roots.v[0]) {
+                std::mem::swap(&mut work.derivs, &mut work.spare);
+                out.root = RootChoice::Vapor;
+                roots.v[1]
+            } else {
+                out.root = RootChoice::Liquid;
+                roots.v[0]
+            };
+            return finish(model, t, p, v, n, ntot, need, &work.derivs, out);
         }
     };
-    out.two_roots = roots.count == 2;
     evaluate_at_volume(model, t, p, v, n, ntot, need, work, out)
 }
 
@@ -166,14 +203,27 @@ pub(crate) fn evaluate_at_volume<M: FluidModel + ?Sized>(
     work: &mut FugacityWork,
     out: &mut LnPhi,
 ) -> Result<()> {
-    let nc = n.len();
-    let mneed = super::Need {
-        composition: need.composition,
-        temperature: need.temperature,
+    let mneed = Need {
         pressure: false,
+        ..need
     };
     model.residual(t, v, n, mneed, &mut work.derivs)?;
-    let d = &work.derivs;
+    finish(model, t, p, v, n, ntot, need, &work.derivs, out)
+}
+
+/// ln φ and its derivatives from the Helmholtz derivatives `d` at volume `v`.
+fn finish<M: FluidModel + ?Sized>(
+    model: &M,
+    t: f64,
+    p: f64,
+    v: f64,
+    n: &[f64],
+    ntot: f64,
+    need: Need,
+    d: &HelmholtzDerivs,
+    out: &mut LnPhi,
+) -> Result<()> {
+    let nc = n.len();
     let rt = R * t;
     let z = p * v / (ntot * rt);
     if !(z > 0.0) || !z.is_finite() {
@@ -192,11 +242,12 @@ pub(crate) fn evaluate_at_volume<M: FluidModel + ?Sized>(
         out.vbar[i] = -p_i / p_v;
     }
     if need.composition {
+        // With v̄_i = −p_i/p_V: p_i p_j/(RT p_V) = v̄_i v̄_j p_V/RT.
+        let c = p_v / rt;
         for i in 0..nc {
-            let p_i = rt / v - rt * d.f_nv[i];
+            let ci = out.vbar[i] * c;
             for j in 0..nc {
-                let p_j = rt / v - rt * d.f_nv[j];
-                out.dn[i * nc + j] = d.f_nn[i * nc + j] + 1.0 / ntot + p_i * p_j / (rt * p_v);
+                out.dn[i * nc + j] = d.f_nn[i * nc + j] + 1.0 / ntot + ci * out.vbar[j];
             }
         }
     }
@@ -222,4 +273,13 @@ pub(crate) fn evaluate_at_volume<M: FluidModel + ?Sized>(
         ));
     }
     Ok(())
+}
+
+fn copy_vec(dst: &mut Vec<f64>, src: &[f64]) {
+    if dst.len() == src.len() {
+        dst.copy_from_slice(src);
+    } else {
+        dst.clear();
+        dst.extend_from_slice(src);
+    }
 }

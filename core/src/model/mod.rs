@@ -13,8 +13,8 @@ pub mod fugacity;
 pub mod state;
 
 pub use any::Model;
-pub use description::{ModelDescription, model_from_json};
 pub use cubic::{CubicEos, CubicKind, CubicSpec, KijMatrix};
+pub use description::{ModelDescription, model_from_json};
 pub use fugacity::{FugacityWork, LnPhi, Need, RootChoice, ln_phi};
 pub use state::{PhaseKind, PhaseState, Properties};
 
@@ -116,11 +116,11 @@ pub trait FluidModel: Send + Sync {
     /// Critical constants of component `i` (for initial estimates only).
     fn critical_constants(&self, i: usize) -> CriticalConstants;
 
-    /// Fills `out` with F = A^r/(RT) at (T [K], V [m3], n [mol]) and the derivatives
+    /// Fills `out` with F = A^r/(RT) at (T (K), V (m3), n (mol)) and the derivatives
     /// requested by `need` (value, V and n first derivatives and ∂²F/∂V², ∂²F/∂n∂V always).
     fn residual(&self, t: f64, v: f64, n: &[f64], need: Need, out: &mut HelmholtzDerivs) -> Result<()>;
 
-    /// Mechanically stable volume roots at (T [K], p [Pa], n [mol]); `work` is scratch.
+    /// Mechanically stable volume roots at (T (K), p (Pa), n (mol)); `work` is scratch.
     fn volume_roots(&self, t: f64, p: f64, n: &[f64], work: &mut HelmholtzDerivs) -> Result<VolumeRoots>;
 
     /// Whether a phase of volume `v` (m3) at T and n is liquid-like (the model's own rule,

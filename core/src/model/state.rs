@@ -112,7 +112,7 @@ pub struct Properties {
 }
 
 impl PhaseState {
-    /// The phase at (T [K], p [Pa], n [mol]) on the chosen root.
+    /// The phase at (T (K), p (Pa), n (mol)) on the chosen root.
     pub fn new<M: FluidModel + ?Sized>(model: &M, t: f64, p: f64, n: &[f64], root: RootChoice) -> Result<Self> {
         let nc = model.num_components();
         let mut w = FugacityWork::new(nc);

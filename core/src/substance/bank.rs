@@ -27,12 +27,40 @@ struct BankFile {
 }
 
 /// A set of components with their references, searchable by name, alias or CAS number.
+/// Serialises as `{"references": {...}, "components": [...]}` and is re-validated (and
+/// re-indexed) when deserialised.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(try_from = "BankRepr", into = "BankRepr")]
 pub struct DataBank {
     references: BTreeMap<String, Reference>,
     components: Vec<Component>,
-    #[serde(skip)]
     index: HashMap<String, usize>,
+}
+
+#[derive(Serialize, Deserialize)]
+struct BankRepr {
+    references: BTreeMap<String, Reference>,
+    components: Vec<Component>,
+}
+
+impl TryFrom<BankRepr> for DataBank {
+    type Error = Error;
+    fn try_from(r: BankRepr) -> Result<Self> {
+        let mut bank = DataBank::with_references(r.references);
+        for c in r.components {
+            bank.add(c)?;
+        }
+        Ok(bank)
+    }
+}
+
+impl From<DataBank> for BankRepr {
+    fn from(b: DataBank) -> Self {
+        BankRepr {
+            references: b.references,
+            components: b.components,
+        }
+    }
 }
 
 fn normalise(key: &str) -> String {
@@ -114,18 +142,6 @@ impl DataBank {
         Ok(())
     }
 
-    fn rebuild_index(&mut self) {
-        self.index.clear();
-        for (id, c) in self.components.iter().enumerate() {
-            for k in std::iter::once(&c.name)
-                .chain(c.aliases.iter())
-                .chain(std::iter::once(&c.cas))
-            {
-                self.index.insert(normalise(k), id);
-            }
-        }
-    }
-
     /// All components, in file order.
     pub fn components(&self) -> &[Component] {
         &self.components
@@ -139,16 +155,6 @@ impl DataBank {
     /// Looks a component up by name, alias or CAS number (case-insensitive). An unknown key
     /// gives [`Error::UnknownComponent`] with the closest known names.
     pub fn get(&self, key: &str) -> Result<&Component> {
-        if self.index.is_empty() && !self.components.is_empty() {
-            // A bank restored by deserialisation has no index yet.
-            let mut me = self.clone();
-            me.rebuild_index();
-            return me
-                .index
-                .get(&normalise(key))
-                .map(|&i| &self.components[i])
-                .ok_or_else(|| self.unknown(key));
-        }
         self.index
             .get(&normalise(key))
             .map(|&i| &self.components[i])
@@ -228,6 +234,126 @@ mod tests {
             }
             other => panic!("wrong error {other}"),
         }
+    }
+
+    #[test]
+    fn embedded_bank_covers_the_required_compounds() {
+        let bank = DataBank::embedded();
+        assert!(bank.components().len() >= 40);
+        for name in [
+            "N2",
+            "O2",
+            "Ar",
+            "H2",
+            "He",
+            "CO",
+            "CO2",
+            "H2S",
+            "SO2",
+            "NH3",
+            "water",
+            "methane",
+            "ethane",
+            "propane",
+            "n-butane",
+            "isobutane",
+            "n-pentane",
+            "isopentane",
+            "n-hexane",
+            "n-heptane",
+            "n-octane",
+            "n-nonane",
+            "n-decane",
+            "ethylene",
+            "propylene",
+            "benzene",
+            "toluene",
+            "o-xylene",
+            "m-xylene",
+            "p-xylene",
+            "methanol",
+            "ethanol",
+            "acetone",
+            "R-134a",
+            "R-32",
+        ] {
+            let c = bank.get(name).unwrap_or_else(|e| panic!("{e}"));
+            // Every constant names a source that the references table defines.
+            for (field, src) in &c.sources {
+                let key = src.split_whitespace().next().unwrap();
+                assert!(
+                    bank.references().contains_key(key),
+                    "{}: {field} cites unknown '{key}'",
+                    c.name
+                );
+            }
+            assert!(c.ideal_gas(298.15).is_ok(), "{}", c.name);
+        }
+        // CAS look-up, case-insensitive names.
+        assert_eq!(bank.get("7732-18-5").unwrap().name, bank.get("WATER").unwrap().name);
+    }
+
+    #[test]
+    fn user_files_are_validated() {
+        let good = r#"
+            [references.mine]
+            citation = "Our own measurements, lab notebook 7 (invented for this test)"
+            [[component]]
+            name = "testane"
+            formula = "C9H20"
+            cas = "0-00-0"
+            molar_mass = 0.128
+            tc = 594.6
+            pc = 22.9e5
+            acentric = 0.44
+            vc = 548e-6
+            hf298 = -228.0e3
+            gf298 = 25.0e3
+            elements = { C = 9, H = 20 }
+            cp = { form = "poly4", coefficients = [4.0, 0.09, 0.0, 0.0, 0.0], t_min = 200.0, t_max = 1000.0 }
+            sources = { molar_mass = "mine", tc = "mine", pc = "mine", acentric = "mine", vc = "mine", hf298 = "mine", gf298 = "mine", cp = "mine" }
+        "#;
+        let bank = DataBank::from_toml_str(good).unwrap();
+        assert_eq!(bank.get("Testane").unwrap().tc, 594.6);
+        // A missing source, an unknown reference key, an unknown field and a bad value are errors.
+        let no_source = good.replace("cp = \"mine\" }", "}");
+        assert!(
+            DataBank::from_toml_str(&no_source)
+                .unwrap_err()
+                .to_string()
+                .contains("no source")
+        );
+        let bad_key = good.replace("tc = \"mine\"", "tc = \"nobody\"");
+        assert!(
+            DataBank::from_toml_str(&bad_key)
+                .unwrap_err()
+                .to_string()
+                .contains("not in [references]")
+        );
+        let unknown = good.replace("vc = 548e-6", "vc = 548e-6\n            colour = 3");
+        assert!(DataBank::from_toml_str(&unknown).is_err());
+        let negative = good.replace("tc = 594.6", "tc = -594.6");
+        assert!(
+            DataBank::from_toml_str(&negative)
+                .unwrap_err()
+                .to_string()
+                .contains("tc")
+        );
+        let dup = format!("{good}\n{}", &good[good.find("[[component]]").unwrap()..]);
+        assert!(
+            DataBank::from_toml_str(&dup)
+                .unwrap_err()
+                .to_string()
+                .contains("names both")
+        );
+    }
+
+    #[test]
+    fn serde_round_trip_reindexes() {
+        let text = serde_json::to_string(DataBank::embedded()).unwrap();
+        let back: DataBank = serde_json::from_str(&text).unwrap();
+        assert_eq!(back.get("ch4").unwrap().name, "methane");
+        assert_eq!(&back, DataBank::embedded());
     }
 
     #[test]

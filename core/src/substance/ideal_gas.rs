@@ -81,8 +81,8 @@ impl CpCorrelation {
         }
     }
 
-    /// cp°/R and its integrals at T: returns (cp/R, ∫cp/R dT from 298.15 K to T [K],
-    /// ∫cp/(R T) dT from 298.15 K to T [-], d(cp/R)/dT [1/K]).
+    /// cp°/R and its integrals at T: returns (cp/R, ∫cp/R dT from 298.15 K to T (K),
+    /// ∫cp/(R T) dT from 298.15 K to T (-), d(cp/R)/dT (1/K)).
     pub fn integrals(&self, t: f64, name: &str) -> Result<(f64, f64, f64, f64)> {
         self.check_range(t, name)?;
         let a = &self.coefficients;

@@ -1,0 +1,443 @@
+// tieline.hpp — header-only C++17 wrapper of the tieline C ABI (tieline.h).
+//
+// RAII classes own the C handles (Model, Context, Result); every failing call throws
+// tieline::Error, which carries the tl_status and the library's message. Inputs are taken as
+// tieline::Span (built implicitly from std::vector<double>, std::array, an initializer list,
+// or a pointer and a length). SI units everywhere (K, Pa, mol, m3, J).
+//
+// Thread safety follows the C handles: a Model may be shared by any number of threads (copies
+// share the same immutable model); a Context and a Result are used by one thread at a time.
+#ifndef TIELINE_HPP
+#define TIELINE_HPP
+
+#include "tieline.h"
+
+#include <array>
+#include <cmath>
+#include <cstddef>
+#include <cstdint>
+#include <initializer_list>
+#include <stdexcept>
+#include <string>
+#include <utility>
+#include <vector>
+
+namespace tieline {
+
+/// An error reported by the library: the status and the message of tl_last_error_message.
+class Error : public std::runtime_error {
+public:
+    Error(tl_status status, const std::string& message)
+        : std::runtime_error(std::string(tl_status_name(status)) + ": " + message), status_(status),
+          message_(message) {}
+    /// The status code.
+    tl_status status() const noexcept { return status_; }
+    /// The library's message alone (what() prefixes the status name).
+    const std::string& message() const noexcept { return message_; }
+
+private:
+    tl_status status_;
+    std::string message_;
+};
+
+namespace detail {
+inline std::string last_error() {
+    size_t needed = 0;
+    tl_last_error_message(nullptr, 0, &needed);
+    std::string s(needed, '\0');
+    if (needed > 0) {
+        tl_last_error_message(&s[0], s.size(), &needed);
+        s.resize(needed - 1);
+    }
+    return s;
+}
+
+inline void check(tl_status s) {
+    if (s != TL_STATUS_OK) throw Error(s, last_error());
+}
+
+// Calls f(buf, len, &needed) twice: once to size, once to fill.
+template <class F> std::string text(F&& f) {
+    size_t needed = 0;
+    tl_status s = f(nullptr, 0, &needed);
+    if (s != TL_STATUS_OK && s != TL_STATUS_BUFFER_TOO_SMALL) check(s);
+    std::string out(needed, '\0');
+    check(f(&out[0], out.size(), &needed));
+    out.resize(needed - 1);
+    return out;
+}
+} // namespace detail
+
+/// A read-only view of doubles: from a vector, an array, an initializer list (valid for the
+/// full expression of the call) or a pointer and a length.
+class Span {
+public:
+    Span(const double* data, size_t size) noexcept : data_(data), size_(size) {}
+    Span(const std::vector<double>& v) noexcept : data_(v.data()), size_(v.size()) {}
+    template <size_t N> Span(const std::array<double, N>& a) noexcept : data_(a.data()), size_(N) {}
+    // The list lives until the end of the full expression of the call it is passed to.
+    Span(std::initializer_list<double> l) noexcept : data_(nullptr), size_(l.size()) { data_ = l.begin(); }
+    const double* data() const noexcept { return data_; }
+    size_t size() const noexcept { return size_; }
+
+private:
+    const double* data_;
+    size_t size_;
+};
+
+/// The library version string, e.g. "0.1.0".
+inline std::string version() { return tl_version(); }
+
+/// Which cubic equation of state.
+enum class CubicKind : uint32_t {
+    PengRobinson = TL_CUBIC_PENG_ROBINSON,
+    PengRobinson78 = TL_CUBIC_PENG_ROBINSON78,
+    SoaveRedlichKwong = TL_CUBIC_SOAVE_REDLICH_KWONG,
+};
+
+/// Which volume root a phase is evaluated on.
+enum class Root : uint32_t {
+    Stable = TL_ROOT_STABLE,
+    Liquid = TL_ROOT_LIQUID,
+    Vapor = TL_ROOT_VAPOR,
+};
+
+/// Default options (plain C structs; change fields as needed).
+inline tl_flash_options default_flash_options() {
+    tl_flash_options o;
+    detail::check(tl_flash_options_default(&o));
+    return o;
+}
+inline tl_stability_options default_stability_options() {
+    tl_stability_options o;
+    detail::check(tl_stability_options_default(&o));
+    return o;
+}
+inline tl_saturation_options default_saturation_options() {
+    tl_saturation_options o;
+    detail::check(tl_saturation_options_default(&o));
+    return o;
+}
+
+/// A bubble or dew point with the incipient phase's mole fractions.
+struct BubbleDew {
+    tl_bubble_dew_point point;
+    std::vector<double> incipient;
+};
+
+/// Batch flash output: per point status and phase count, per phase slot kind, fraction,
+/// molar volume, and composition (point, slot, component; row-major).
+struct BatchResult {
+    size_t points = 0, max_phases = 0, components = 0;
+    std::vector<tl_status> status;
+    std::vector<size_t> num_phases;
+    std::vector<tl_phase_kind> phase_kind;
+    std::vector<double> phase_fraction, phase_molar_volume, phase_composition;
+    /// Mole fraction of component i in phase slot k of point p.
+    double composition(size_t p, size_t k, size_t i) const {
+        return phase_composition[(p * max_phases + k) * components + i];
+    }
+};
+
+class Result;
+
+/// A thermodynamic model. Copies share the same immutable model (reference counted).
+class Model {
+public:
+    /// A cubic equation of state for components named in the embedded data bank.
+    static Model from_names(const std::vector<std::string>& names, CubicKind kind = CubicKind::PengRobinson) {
+        auto p = pointers(names);
+        const tl_model* m = nullptr;
+        detail::check(tl_model_new(p.data(), p.size(), static_cast<tl_cubic_kind>(kind), &m));
+        return Model(m);
+    }
+    /// A model from JSON text: a model description or a full model (tl_model_to_json).
+    static Model from_json(const std::string& json) {
+        const tl_model* m = nullptr;
+        detail::check(tl_model_from_json(json.c_str(), &m));
+        return Model(m);
+    }
+    /// Components looked up in a user component file (TOML text).
+    static Model from_component_toml(const std::string& toml, const std::vector<std::string>& names,
+                                     CubicKind kind = CubicKind::PengRobinson) {
+        auto p = pointers(names);
+        const tl_model* m = nullptr;
+        detail::check(tl_model_from_component_toml(toml.c_str(), p.data(), p.size(),
+                                                   static_cast<tl_cubic_kind>(kind), &m));
+        return Model(m);
+    }
+    /// Components looked up in a user component file (TOML file path).
+    static Model from_component_file(const std::string& path, const std::vector<std::string>& names,
+                                     CubicKind kind = CubicKind::PengRobinson) {
+        auto p = pointers(names);
+        const tl_model* m = nullptr;
+        detail::check(tl_model_from_component_file(path.c_str(), p.data(), p.size(),
+                                                   static_cast<tl_cubic_kind>(kind), &m));
+        return Model(m);
+    }
+
+    Model(const Model& o) : m_(nullptr) {
+        if (o.m_) detail::check(tl_model_clone(o.m_, &m_));
+    }
+    Model(Model&& o) noexcept : m_(o.m_) { o.m_ = nullptr; }
+    Model& operator=(Model o) noexcept {
+        std::swap(m_, o.m_);
+        return *this;
+    }
+    ~Model() { tl_model_free(m_); }
+
+    /// The C handle (still owned by this object).
+    const tl_model* get() const noexcept { return m_; }
+
+    size_t num_components() const {
+        size_t n = 0;
+        detail::check(tl_model_num_components(m_, &n));
+        return n;
+    }
+    std::string component_name(size_t i) const {
+        return detail::text([&](char* b, size_t l, size_t* n) { return tl_model_component_name(m_, i, b, l, n); });
+    }
+    /// Molar mass of component i, kg/mol.
+    double molar_mass(size_t i) const {
+        double v = 0;
+        detail::check(tl_model_molar_mass(m_, i, &v));
+        return v;
+    }
+    std::string to_json() const {
+        return detail::text([&](char* b, size_t l, size_t* n) { return tl_model_to_json(m_, b, l, n); });
+    }
+
+    /// One-shot PT flash (cold start). For repeated calls use a Context.
+    inline Result flash(double t, double p, Span n, const tl_flash_options* opts = nullptr) const;
+    /// Stability test of a phase of amounts n at (t, p).
+    inline Result stability(double t, double p, Span n, const tl_stability_options* opts = nullptr) const;
+
+    /// Parallel batch of PT flashes (see tl_flash_batch); feeds holds nc or npts*nc amounts.
+    BatchResult flash_batch(Span t, Span p, Span feeds, size_t threads = 0, size_t max_phases = 2,
+                            const tl_flash_options* opts = nullptr) const {
+        if (t.size() != p.size())
+            throw Error(TL_STATUS_INVALID_INPUT, "temperature and pressure differ in length");
+        BatchResult r;
+        r.points = t.size();
+        r.max_phases = max_phases;
+        r.components = num_components();
+        r.status.resize(r.points);
+        r.num_phases.resize(r.points);
+        r.phase_kind.resize(r.points * max_phases);
+        r.phase_fraction.resize(r.points * max_phases);
+        r.phase_molar_volume.resize(r.points * max_phases);
+        r.phase_composition.resize(r.points * max_phases * r.components);
+        tl_batch_output out{r.points,
+                            max_phases,
+                            r.status.data(),
+                            r.num_phases.data(),
+                            r.phase_kind.data(),
+                            r.phase_fraction.data(),
+                            r.phase_molar_volume.data(),
+                            r.phase_composition.data()};
+        detail::check(tl_flash_batch(m_, t.data(), p.data(), t.size(), feeds.data(), feeds.size(), opts, threads,
+                                     &out));
+        return r;
+    }
+
+    /// Vapour pressure of component i at t.
+    tl_saturation_point saturation_pressure(size_t i, double t, const tl_saturation_options* o = nullptr) const {
+        tl_saturation_point s;
+        detail::check(tl_saturation_pressure(m_, i, t, o, &s));
+        return s;
+    }
+    /// Boiling temperature of component i at p.
+    tl_saturation_point saturation_temperature(size_t i, double p, const tl_saturation_options* o = nullptr) const {
+        tl_saturation_point s;
+        detail::check(tl_saturation_temperature(m_, i, p, o, &s));
+        return s;
+    }
+    BubbleDew bubble_pressure(double t, Span n, const tl_saturation_options* o = nullptr) const {
+        return mixture(tl_bubble_pressure, t, n, o);
+    }
+    BubbleDew dew_pressure(double t, Span n, const tl_saturation_options* o = nullptr) const {
+        return mixture(tl_dew_pressure, t, n, o);
+    }
+    BubbleDew bubble_temperature(double p, Span n, const tl_saturation_options* o = nullptr) const {
+        return mixture(tl_bubble_temperature, p, n, o);
+    }
+    BubbleDew dew_temperature(double p, Span n, const tl_saturation_options* o = nullptr) const {
+        return mixture(tl_dew_temperature, p, n, o);
+    }
+
+    /// Properties of one phase of amounts n at (t, p) on the chosen root.
+    tl_properties properties(double t, double p, Span n, Root root = Root::Stable,
+                             std::vector<double>* ln_phi = nullptr) const {
+        tl_properties out;
+        if (ln_phi) ln_phi->assign(n.size(), 0.0);
+        detail::check(tl_phase_properties(m_, t, p, n.data(), n.size(), static_cast<tl_root_choice>(root), &out,
+                                          ln_phi ? ln_phi->data() : nullptr, ln_phi ? ln_phi->size() : 0));
+        return out;
+    }
+
+private:
+    explicit Model(const tl_model* m) noexcept : m_(m) {}
+    static std::vector<const char*> pointers(const std::vector<std::string>& names) {
+        std::vector<const char*> p;
+        p.reserve(names.size());
+        for (const auto& s : names) p.push_back(s.c_str());
+        return p;
+    }
+    using MixtureFn = tl_status (*)(const tl_model*, double, const double*, size_t, const tl_saturation_options*,
+                                    tl_bubble_dew_point*, double*, size_t);
+    BubbleDew mixture(MixtureFn f, double spec, Span n, const tl_saturation_options* o) const {
+        BubbleDew r;
+        r.incipient.assign(num_components(), 0.0);
+        detail::check(f(m_, spec, n.data(), n.size(), o, &r.point, r.incipient.data(), r.incipient.size()));
+        return r;
+    }
+    const tl_model* m_;
+};
+
+/// A flash or stability result. Reuse one Result across calls to avoid allocation.
+class Result {
+public:
+    Result() { detail::check(tl_result_new(&r_)); }
+    Result(const Result&) = delete;
+    Result& operator=(const Result&) = delete;
+    Result(Result&& o) noexcept : r_(o.r_) { o.r_ = nullptr; }
+    Result& operator=(Result&& o) noexcept {
+        std::swap(r_, o.r_);
+        return *this;
+    }
+    ~Result() { tl_result_free(r_); }
+
+    tl_result* get() noexcept { return r_; }
+    const tl_result* get() const noexcept { return r_; }
+
+    tl_result_kind kind() const {
+        tl_result_kind k;
+        detail::check(tl_result_kind_of(r_, &k));
+        return k;
+    }
+    double temperature() const {
+        double t = 0;
+        detail::check(tl_result_conditions(r_, &t, nullptr));
+        return t;
+    }
+    double pressure() const {
+        double p = 0;
+        detail::check(tl_result_conditions(r_, nullptr, &p));
+        return p;
+    }
+    size_t num_phases() const {
+        size_t n = 0;
+        detail::check(tl_result_num_phases(r_, &n));
+        return n;
+    }
+    size_t num_components() const {
+        size_t n = 0;
+        detail::check(tl_result_num_components(r_, &n));
+        return n;
+    }
+    double vapor_fraction() const {
+        double v = 0;
+        detail::check(tl_result_vapor_fraction(r_, &v));
+        return v;
+    }
+    tl_phase_info phase(size_t i) const {
+        tl_phase_info p;
+        detail::check(tl_result_phase(r_, i, &p));
+        return p;
+    }
+    std::vector<double> composition(size_t i) const {
+        std::vector<double> x(num_components());
+        detail::check(tl_result_phase_composition(r_, i, x.data(), x.size()));
+        return x;
+    }
+    /// Writes the mole fractions of phase i into out[0..len).
+    void composition(size_t i, double* out, size_t len) const {
+        detail::check(tl_result_phase_composition(r_, i, out, len));
+    }
+    std::vector<double> ln_phi(size_t i) const {
+        std::vector<double> x(num_components());
+        detail::check(tl_result_phase_ln_phi(r_, i, x.data(), x.size()));
+        return x;
+    }
+    tl_properties phase_properties(const Model& m, size_t i) const {
+        tl_properties p;
+        detail::check(tl_result_phase_properties(r_, m.get(), i, &p));
+        return p;
+    }
+    tl_mixture_properties mixture_properties(const Model& m) const {
+        tl_mixture_properties p;
+        detail::check(tl_result_mixture_properties(r_, m.get(), &p));
+        return p;
+    }
+    tl_diagnostics diagnostics() const {
+        tl_diagnostics d;
+        detail::check(tl_result_diagnostics(r_, &d));
+        return d;
+    }
+    tl_stability_summary stability() const {
+        tl_stability_summary s;
+        detail::check(tl_result_stability(r_, &s));
+        return s;
+    }
+    /// Composition and tpd of stationary point i of a stability result.
+    std::vector<double> stationary_point(size_t i, double* tpd = nullptr, bool* liquid_like = nullptr) const {
+        std::vector<double> w(num_components());
+        detail::check(tl_result_stationary_point(r_, i, tpd, liquid_like, w.data(), w.size()));
+        return w;
+    }
+    std::string to_json() const {
+        return detail::text([&](char* b, size_t l, size_t* n) { return tl_result_to_json(r_, b, l, n); });
+    }
+
+private:
+    tl_result* r_ = nullptr;
+};
+
+/// A reusable flash solver for one model (warm starts, no allocation in steady state).
+/// Use from one thread at a time; create one per thread.
+class Context {
+public:
+    explicit Context(const Model& m) { detail::check(tl_context_new(m.get(), &c_)); }
+    Context(const Context&) = delete;
+    Context& operator=(const Context&) = delete;
+    Context(Context&& o) noexcept : c_(o.c_) { o.c_ = nullptr; }
+    Context& operator=(Context&& o) noexcept {
+        std::swap(c_, o.c_);
+        return *this;
+    }
+    ~Context() { tl_context_free(c_); }
+
+    tl_context* get() noexcept { return c_; }
+
+    /// PT flash into an existing result (reuses its storage).
+    void flash(double t, double p, Span n, Result& out, const tl_flash_options* opts = nullptr) {
+        detail::check(tl_context_flash(c_, t, p, n.data(), n.size(), opts, out.get()));
+    }
+    /// PT flash into a new result.
+    Result flash(double t, double p, Span n, const tl_flash_options* opts = nullptr) {
+        Result r;
+        flash(t, p, n, r, opts);
+        return r;
+    }
+    /// Forget the previous solution (next flash starts cold).
+    void reset() { detail::check(tl_context_reset(c_)); }
+
+private:
+    tl_context* c_ = nullptr;
+};
+
+inline Result Model::flash(double t, double p, Span n, const tl_flash_options* opts) const {
+    Result r;
+    detail::check(tl_flash(m_, t, p, n.data(), n.size(), opts, r.get()));
+    return r;
+}
+
+inline Result Model::stability(double t, double p, Span n, const tl_stability_options* opts) const {
+    Result r;
+    detail::check(tl_stability(m_, t, p, n.data(), n.size(), opts, r.get()));
+    return r;
+}
+
+} // namespace tieline
+
+#endif // TIELINE_HPP

@@ -1,0 +1,209 @@
+/* The C ABI from plain C11: models, contexts, results, accessors, JSON, errors, versions.
+ * Built twice: against the shared library and against the static library. */
+#include "tieline.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+static int passed = 0, failed = 0;
+#define CHECK(cond, what)                                                           \
+  do {                                                                              \
+    if (cond) {                                                                     \
+      ++passed;                                                                     \
+    } else {                                                                        \
+      ++failed;                                                                     \
+      fprintf(stderr, "%s:%d: FAILED: %s\n", __FILE__, __LINE__, what);            \
+    }                                                                               \
+  } while (0)
+#define OK(call) CHECK((call) == TL_STATUS_OK, #call)
+
+static void last_error(char *buf, size_t len) {
+  size_t needed = 0;
+  tl_last_error_message(buf, len, &needed);
+}
+
+int main(void) {
+  char msg[512];
+  char version[32];
+  snprintf(version, sizeof version, "%d.%d.%d", TL_VERSION_MAJOR, TL_VERSION_MINOR, TL_VERSION_PATCH);
+  CHECK(strcmp(tl_version(), version) == 0, "tl_version() matches the header macros");
+  CHECK(tl_version_number() == (uint32_t)TL_VERSION_NUMBER, "tl_version_number() == TL_VERSION_NUMBER");
+#ifdef TL_EXPECTED_VERSION
+  CHECK(strcmp(version, TL_EXPECTED_VERSION) == 0, "header version matches Cargo.toml");
+  {
+    unsigned ma = 0, mi = 0, pa = 0;
+    sscanf(TL_EXPECTED_VERSION, "%u.%u.%u", &ma, &mi, &pa);
+    CHECK((uint32_t)TL_VERSION_NUMBER == ((ma << 16) | (mi << 8) | pa), "TL_VERSION_NUMBER combines Cargo.toml's parts");
+    CHECK(TL_VERSION_MAJOR == (int)ma && TL_VERSION_MINOR == (int)mi && TL_VERSION_PATCH == (int)pa,
+          "each version macro matches Cargo.toml");
+  }
+#endif
+  CHECK(strcmp(tl_status_name(TL_STATUS_NULL_POINTER), "TL_STATUS_NULL_POINTER") == 0, "status name");
+  CHECK(strcmp(tl_status_name(12345), "TL_STATUS_UNKNOWN") == 0, "unknown status name");
+
+  /* A model from names in the embedded bank. */
+  const char *names[] = {"methane", "n-butane"};
+  const tl_model *model = NULL;
+  OK(tl_model_new(names, 2, TL_CUBIC_PENG_ROBINSON, &model));
+  size_t nc = 0;
+  OK(tl_model_num_components(model, &nc));
+  CHECK(nc == 2, "two components");
+  char name[64];
+  size_t needed = 0;
+  OK(tl_model_component_name(model, 1, name, sizeof name, &needed));
+  CHECK(strcmp(name, "n-butane") == 0 && needed == strlen("n-butane") + 1, "component name and size");
+  CHECK(tl_model_component_name(model, 1, name, 3, &needed) == TL_STATUS_BUFFER_TOO_SMALL && needed == 9,
+        "short buffer reports the size needed");
+  double mm = 0;
+  OK(tl_model_molar_mass(model, 0, &mm));
+  CHECK(fabs(mm - 16.043e-3) < 1e-5, "molar mass of methane, kg/mol");
+
+  /* Model JSON round trip. */
+  CHECK(tl_model_to_json(model, NULL, 0, &needed) == TL_STATUS_BUFFER_TOO_SMALL, "model JSON size query");
+  char *mjson = malloc(needed);
+  OK(tl_model_to_json(model, mjson, needed, &needed));
+  const tl_model *model2 = NULL;
+  OK(tl_model_from_json(mjson, &model2));
+  free(mjson);
+
+  /* A flash through a context, and the same one-shot: the same numbers. */
+  tl_context *ctx = NULL;
+  tl_result *res = NULL, *res2 = NULL;
+  OK(tl_context_new(model, &ctx));
+  OK(tl_result_new(&res));
+  OK(tl_result_new(&res2));
+  tl_result_kind kind = TL_RESULT_KIND_FLASH;
+  OK(tl_result_kind_of(res, &kind));
+  CHECK(kind == TL_RESULT_KIND_EMPTY, "a new result is empty");
+  size_t np = 0;
+  CHECK(tl_result_num_phases(res, &np) == TL_STATUS_WRONG_RESULT_KIND, "accessor on an empty result");
+  double z[2] = {0.5, 0.5};
+  OK(tl_context_flash(ctx, 300.0, 5.0e6, z, 2, NULL, res));
+  OK(tl_flash(model2, 300.0, 5.0e6, z, 2, NULL, res2));
+  OK(tl_result_kind_of(res, &kind));
+  CHECK(kind == TL_RESULT_KIND_FLASH, "kind flash");
+  OK(tl_result_num_phases(res, &np));
+  CHECK(np == 2, "two phases at 300 K, 50 bar");
+  tl_phase_info v, l, v2;
+  OK(tl_result_phase(res, 0, &v));
+  OK(tl_result_phase(res, 1, &l));
+  OK(tl_result_phase(res2, 0, &v2));
+  CHECK(v.kind == TL_PHASE_KIND_VAPOR && l.kind == TL_PHASE_KIND_LIQUID, "vapour first, then liquid");
+  CHECK(v.fraction == v2.fraction && v.molar_volume == v2.molar_volume, "context and one-shot agree exactly");
+  CHECK(fabs(v.fraction + l.fraction - 1.0) < 1e-12, "fractions sum to one");
+  double y[2], x[2];
+  OK(tl_result_phase_composition(res, 0, y, 2));
+  OK(tl_result_phase_composition(res, 1, x, 2));
+  CHECK(y[0] > z[0] && x[0] < z[0], "methane enriches the vapour");
+  CHECK(tl_result_phase_composition(res, 0, y, 1) == TL_STATUS_BUFFER_TOO_SMALL, "short composition buffer");
+  CHECK(tl_result_phase(res, 2, &v) == TL_STATUS_INDEX_OUT_OF_RANGE, "phase index out of range");
+  double beta = 0;
+  OK(tl_result_vapor_fraction(res, &beta));
+  CHECK(beta == v.fraction, "vapour fraction");
+  double T = 0, p = 0;
+  OK(tl_result_conditions(res, &T, &p));
+  CHECK(T == 300.0 && p == 5.0e6, "conditions");
+  tl_diagnostics d;
+  OK(tl_result_diagnostics(res, &d));
+  CHECK(d.has_certificate && d.certificate >= -1e-10, "certified minimum");
+  CHECK(d.residual < 1e-10, "converged");
+  tl_properties pr;
+  OK(tl_result_phase_properties(res, model, 1, &pr));
+  CHECK(pr.kind == TL_PHASE_KIND_LIQUID && pr.mass_density > 300 && pr.mass_density < 700, "liquid density kg/m3");
+  tl_mixture_properties mp;
+  OK(tl_result_mixture_properties(res, model, &mp));
+  CHECK(fabs(mp.molar_volume - (v.fraction * v.molar_volume + l.fraction * l.molar_volume)) < 1e-15,
+        "mixture molar volume");
+
+  /* Warm start on the next call. */
+  OK(tl_context_flash(ctx, 301.0, 5.0e6, z, 2, NULL, res));
+  OK(tl_result_diagnostics(res, &d));
+  CHECK(d.warm_start, "second call warm-started");
+  OK(tl_context_reset(ctx));
+  OK(tl_context_flash(ctx, 301.0, 5.0e6, z, 2, NULL, res));
+  OK(tl_result_diagnostics(res, &d));
+  CHECK(!d.warm_start, "cold after reset");
+
+  /* Result JSON with the size query. */
+  CHECK(tl_result_to_json(res, NULL, 0, &needed) == TL_STATUS_BUFFER_TOO_SMALL && needed > 100, "JSON size query");
+  char *json = malloc(needed);
+  OK(tl_result_to_json(res, json, needed, &needed));
+  CHECK(strstr(json, "\"phases\"") != NULL && strlen(json) + 1 == needed, "JSON text");
+  free(json);
+
+  /* Options: negative flash gives a tie line for a single-phase feed. */
+  tl_flash_options opts;
+  OK(tl_flash_options_default(&opts));
+  CHECK(opts.certificate && !opts.negative_flash && opts.tolerance == 1e-10, "default options");
+  opts.negative_flash = true;
+  double zv[2] = {0.97, 0.03};
+  OK(tl_flash(model, 300.0, 5.0e6, zv, 2, &opts, res));
+  OK(tl_result_num_phases(res, &np));
+  CHECK(np == 1, "single phase");
+  double tx[2], ty[2];
+  tl_status st = tl_result_tie_line(res, &beta, tx, 2, ty, 2);
+  CHECK(st == TL_STATUS_OK && (beta > 1.0 || beta < 0.0), "tie-line extension beta outside [0, 1]");
+  OK(tl_flash(model, 300.0, 5.0e6, zv, 2, NULL, res));
+  CHECK(tl_result_tie_line(res, &beta, NULL, 0, NULL, 0) == TL_STATUS_NOT_AVAILABLE, "no tie line by default");
+
+  /* Stability, saturation, bubble and dew points, properties at (T, p, n). */
+  OK(tl_stability(model, 300.0, 5.0e6, z, 2, NULL, res));
+  tl_stability_summary ss;
+  OK(tl_result_stability(res, &ss));
+  CHECK(!ss.stable && ss.min_tpd < 0 && ss.num_points >= 1, "the feed is unstable");
+  double w[2], tpd = 0;
+  bool liq = false;
+  OK(tl_result_stationary_point(res, 0, &tpd, &liq, w, 2));
+  CHECK(tpd == ss.min_tpd, "most negative point first");
+  CHECK(tl_result_num_phases(res, &np) == TL_STATUS_WRONG_RESULT_KIND, "flash accessor on a stability result");
+  tl_saturation_point sp;
+  OK(tl_saturation_pressure(model, 1, 350.0, NULL, &sp));
+  CHECK(sp.pressure > 8e5 && sp.pressure < 1.1e6, "n-butane vapour pressure at 350 K");
+  tl_saturation_point st2;
+  OK(tl_saturation_temperature(model, 1, sp.pressure, NULL, &st2));
+  CHECK(fabs(st2.temperature - 350.0) < 1e-6, "boiling temperature round trip");
+  CHECK(tl_saturation_pressure(model, 0, 250.0, NULL, &sp) == TL_STATUS_NO_SOLUTION, "above Tc");
+  last_error(msg, sizeof msg);
+  CHECK(strstr(msg, "critical") != NULL, "message names the critical temperature");
+  tl_bubble_dew_point bp;
+  double inc[2];
+  double zl[2] = {0.3, 0.7};
+  OK(tl_bubble_pressure(model, 300.0, zl, 2, NULL, &bp, inc, 2));
+  CHECK(bp.pressure > 5.0e6 && bp.pressure < 6.0e6 && inc[0] > 0.3, "bubble pressure of a butane-rich liquid");
+  OK(tl_dew_pressure(model, 300.0, z, 2, NULL, &bp, NULL, 0));
+  CHECK(bp.pressure < 5.0e6, "dew pressure below it");
+  OK(tl_phase_properties(model, 300.0, 1.0e5, zv, 2, TL_ROOT_VAPOR, &pr, NULL, 0));
+  CHECK(pr.kind == TL_PHASE_KIND_VAPOR && fabs(pr.z - 1.0) < 0.02, "near-ideal gas at 1 bar");
+
+  /* Errors: status, message, outputs untouched. */
+  tl_context *untouched = (tl_context *)0x1;
+  CHECK(tl_context_new(NULL, &untouched) == TL_STATUS_NULL_POINTER && untouched == (tl_context *)0x1,
+        "NULL model: status and no output");
+  double bad[2] = {0.5, -1.0};
+  CHECK(tl_context_flash(ctx, 300.0, 5.0e6, bad, 2, NULL, res) == TL_STATUS_INVALID_INPUT, "negative amount");
+  last_error(msg, sizeof msg);
+  CHECK(strstr(msg, "component 1") != NULL, "message names the component");
+  OK(tl_result_kind_of(res, &kind));
+  CHECK(kind == TL_RESULT_KIND_STABILITY, "a failed flash leaves the result unchanged");
+  char tiny[8];
+  size_t full = 0;
+  CHECK(tl_last_error_message(tiny, sizeof tiny, &full) == TL_STATUS_BUFFER_TOO_SMALL && strlen(tiny) == 7 &&
+            full > 8,
+        "truncated message");
+  last_error(msg, sizeof msg);
+  CHECK(strstr(msg, "component 1") != NULL, "reading the message does not change it");
+
+  tl_result_free(res);
+  tl_result_free(res2);
+  tl_context_free(ctx);
+  tl_model_free(model);
+  tl_model_free(model2);
+  tl_model_free(NULL);
+  tl_context_free(NULL);
+  tl_result_free(NULL);
+
+  printf("test_c_api: %d passed, %d failed\n", passed, failed);
+  return failed == 0 ? 0 : 1;
+}

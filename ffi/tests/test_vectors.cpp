@@ -1,0 +1,263 @@
+// The shared test vectors (tests/vectors/cases.json) through the C ABI: the expected values
+// with the tolerances of the file, and bit-for-bit equality with the Rust results of the same
+// calls (written by the tieline-ffi-reference program).
+//
+// usage: test_vectors CASES_JSON REFERENCE_JSON
+#include "check.hpp"
+#include "json.hpp"
+#include "tieline.hpp"
+
+#include <cstdio>
+#include <string>
+#include <vector>
+
+using tieline::Model;
+using tieline::Result;
+
+static tl_status status_of(const json::Value& rec) { return tl_status(uint32_t(rec["status"].number())); }
+
+// Compares a C flash result with a Rust reference record, field by field and as JSON text.
+static void same_flash(const std::string& id, const Result& r, const json::Value& ref) {
+    CHECK(r.num_phases() == ref["phases"].size(), id + ": number of phases");
+    size_t np = std::min(r.num_phases(), ref["phases"].size());
+    for (size_t k = 0; k < np; ++k) {
+        const auto& rp = ref["phases"][k];
+        tl_phase_info ph = r.phase(k);
+        std::string w = id + " phase " + std::to_string(k);
+        CHECK(uint32_t(ph.kind) == uint32_t(rp["kind"].number()), w + " kind");
+        CHECK_SAME(ph.amount, rp["amount"].number(), w + " amount");
+        CHECK_SAME(ph.fraction, rp["fraction"].number(), w + " fraction");
+        CHECK_SAME(ph.molar_volume, rp["molar_volume"].number(), w + " molar volume");
+        CHECK_SAME(ph.z, rp["z"].number(), w + " Z");
+        auto x = r.composition(k);
+        auto lp = r.ln_phi(k);
+        auto rx = rp["composition"].numbers();
+        auto rl = rp["ln_phi"].numbers();
+        for (size_t i = 0; i < x.size() && i < rx.size(); ++i) {
+            CHECK_SAME(x[i], rx[i], w + " x" + std::to_string(i));
+            CHECK_SAME(lp[i], rl[i], w + " ln phi" + std::to_string(i));
+        }
+    }
+    tl_diagnostics d = r.diagnostics();
+    CHECK_SAME(d.residual, ref["residual"].number(), id + " residual");
+    CHECK_SAME(d.certificate, ref["certificate"].number(), id + " certificate");
+    CHECK_SAME(d.gibbs, ref["gibbs"].number(), id + " G/RT");
+    CHECK(d.ss_iterations == size_t(ref["ss_iterations"].number()), id + " SS iterations");
+    CHECK(d.newton_iterations == size_t(ref["newton_iterations"].number()), id + " Newton iterations");
+    CHECK(d.stability_iterations == size_t(ref["stability_iterations"].number()), id + " stability iterations");
+    CHECK(d.warm_start == ref["warm_start"].b, id + " warm start");
+    CHECK(r.to_json() == ref["json"].str, id + " JSON text identical");
+}
+
+static void expected_flash(const json::Value& c, const Result& r) {
+    const std::string id = c["id"].str;
+    const auto& e = c["expected"];
+    double tol = e["tolerance"].number();
+    CHECK(r.num_phases() == size_t(e["phases"].number()), id + ": phases");
+    for (size_t k = 0; k < r.num_phases() && k < e["fractions"].size(); ++k) {
+        double f = r.phase(k).fraction;
+        CHECK(std::fabs(f - e["fractions"][k].number()) < tol, id + ": fraction " + t::num(f));
+        auto x = r.composition(k);
+        for (size_t i = 0; i < x.size(); ++i)
+            CHECK(std::fabs(x[i] - e["compositions"][k][i].number()) < tol, id + ": x " + t::num(x[i]));
+    }
+    tl_diagnostics d = r.diagnostics();
+    if (e.has("gibbs"))
+        CHECK(std::fabs(d.gibbs - e["gibbs"].number()) < e["gibbs_tolerance"].number(), id + ": G/RT");
+    CHECK(d.residual < 1e-10, id + ": residual");
+    CHECK(d.has_certificate && d.certificate >= -1e-10, id + ": certificate");
+}
+
+template <class F> static tl_status status_of_call(F&& f) {
+    try {
+        f();
+        return TL_STATUS_OK;
+    } catch (const tieline::Error& e) {
+        return e.status();
+    }
+}
+
+int main(int argc, char** argv) {
+    if (argc != 3) {
+        std::fprintf(stderr, "usage: %s CASES_JSON REFERENCE_JSON\n", argv[0]);
+        return 2;
+    }
+    json::Value cases = json::parse_file(argv[1]);
+    json::Value ref = json::parse_file(argv[2]);
+    auto model = [](const json::Value& c) { return Model::from_json(c["model"].raw); };
+
+    // Stability verdicts.
+    for (size_t k = 0; k < cases["stability"].size(); ++k) {
+        const auto& c = cases["stability"][k];
+        const auto& rr = ref["stability"][k]["result"];
+        const std::string id = c["id"].str;
+        Model m = model(c);
+        Result r = m.stability(c["temperature"].number(), c["pressure"].number(), c["feed"].numbers());
+        tl_stability_summary s = r.stability();
+        CHECK(s.stable == c["expected"]["stable"].b, id + ": verdict");
+        if (c["expected"].has("min_tpd"))
+            CHECK(std::fabs(s.min_tpd - c["expected"]["min_tpd"].number()) < c["expected"]["tpd_tolerance"].number(),
+                  id + ": min tpd " + t::num(s.min_tpd));
+        CHECK(s.stable == rr["stable"].b, id + ": verdict as Rust");
+        CHECK_SAME(s.min_tpd, rr["min_tpd"].number(), id + ": min tpd as Rust");
+        CHECK(s.num_points == size_t(rr["num_points"].number()), id + ": points as Rust");
+        CHECK(s.iterations == size_t(rr["iterations"].number()), id + ": iterations as Rust");
+        CHECK(r.to_json() == rr["json"].str, id + ": JSON as Rust");
+    }
+
+    // Flashes: one-shot, then a warm-started sequence through one context.
+    tl_flash_options opts = tieline::default_flash_options();
+    for (size_t k = 0; k < cases["flash"].size(); ++k) {
+        const auto& c = cases["flash"][k];
+        const std::string id = c["id"].str;
+        Model m = model(c);
+        double T = c["temperature"].number(), p = c["pressure"].number();
+        auto z = c["feed"].numbers();
+        Result r = m.flash(T, p, z, &opts);
+        expected_flash(c, r);
+        same_flash(id + " one-shot", r, ref["flash"][k]["result"]);
+
+        const auto& w = ref["warm"][k];
+        tieline::Context ctx(m);
+        Result rr; // reused across the steps
+        for (size_t s = 0; s < size_t(w["steps"].number()); ++s) {
+            double Ts = T + w["step"].number() * double(s);
+            const auto& rec = w["results"][s];
+            tl_status st = status_of_call([&] { ctx.flash(Ts, p, z, rr, &opts); });
+            CHECK(st == status_of(rec), id + " warm step " + std::to_string(s) + ": status " + tl_status_name(st));
+            if (st == TL_STATUS_OK && status_of(rec) == TL_STATUS_OK)
+                same_flash(id + " warm step " + std::to_string(s), rr, rec);
+        }
+
+        // Bubble and dew points of the same feed (status and values as Rust).
+        const auto& bd = ref["bubble_dew"][k];
+        struct Call {
+            const char* name;
+            tieline::BubbleDew (Model::*f)(double, tieline::Span, const tl_saturation_options*) const;
+            double spec;
+        } calls[] = {{"bubble_pressure", &Model::bubble_pressure, T},
+                     {"dew_pressure", &Model::dew_pressure, T},
+                     {"bubble_temperature", &Model::bubble_temperature, p},
+                     {"dew_temperature", &Model::dew_temperature, p}};
+        for (const auto& call : calls) {
+            const auto& rec = bd[call.name];
+            tieline::BubbleDew out{};
+            tl_status st = status_of_call([&] { out = (m.*call.f)(call.spec, z, nullptr); });
+            std::string what = id + " " + call.name;
+            CHECK(st == status_of(rec), what + ": status " + tl_status_name(st));
+            if (st == TL_STATUS_OK && status_of(rec) == TL_STATUS_OK) {
+                CHECK_SAME(out.point.temperature, rec["temperature"].number(), what + " T");
+                CHECK_SAME(out.point.pressure, rec["pressure"].number(), what + " p");
+                CHECK_SAME(out.point.residual, rec["residual"].number(), what + " residual");
+                auto inc = rec["incipient"].numbers();
+                for (size_t i = 0; i < inc.size(); ++i) CHECK_SAME(out.incipient[i], inc[i], what + " incipient");
+            }
+        }
+    }
+
+    // Volume roots and properties of pure components.
+    for (size_t k = 0; k < cases["volumes"].size(); ++k) {
+        const auto& c = cases["volumes"][k];
+        const auto& rr = ref["volumes"][k];
+        const std::string id = c["id"].str;
+        Model m = model(c);
+        double T = c["temperature"].number(), p = c["pressure"].number();
+        auto n = c["feed"].numbers();
+        double tol = c["expected"]["rel_tolerance"].number();
+        struct R {
+            const char* key;
+            const char* expected;
+            tieline::Root root;
+        } roots[] = {{"vapor", "vapor_molar_volume", tieline::Root::Vapor},
+                     {"liquid", "liquid_molar_volume", tieline::Root::Liquid},
+                     {"stable", nullptr, tieline::Root::Stable}};
+        for (const auto& ro : roots) {
+            const auto& rec = rr[ro.key];
+            std::vector<double> lp;
+            tl_properties pr{};
+            tl_status st = status_of_call([&] { pr = m.properties(T, p, n, ro.root, &lp); });
+            std::string what = id + " " + ro.key;
+            CHECK(st == status_of(rec), what + ": status " + tl_status_name(st));
+            if (st != TL_STATUS_OK) continue;
+            if (ro.expected) {
+                double want = c["expected"][ro.expected].number();
+                CHECK(std::fabs(pr.molar_volume - want) / want < tol, what + ": v " + t::num(pr.molar_volume));
+            }
+            CHECK(uint32_t(pr.kind) == uint32_t(rec["kind"].number()), what + " kind");
+            CHECK_SAME(pr.molar_volume, rec["molar_volume"].number(), what + " v");
+            CHECK_SAME(pr.z, rec["z"].number(), what + " Z");
+            CHECK_SAME(pr.enthalpy, rec["enthalpy"].number(), what + " h");
+            CHECK_SAME(pr.entropy, rec["entropy"].number(), what + " s");
+            CHECK_SAME(pr.gibbs, rec["gibbs"].number(), what + " g");
+            CHECK_SAME(pr.cp, rec["cp"].number(), what + " cp");
+            CHECK_SAME(pr.cv, rec["cv"].number(), what + " cv");
+            CHECK_SAME(pr.speed_of_sound, rec["speed_of_sound"].number(), what + " w");
+            CHECK_SAME(pr.joule_thomson, rec["joule_thomson"].number(), what + " mu_JT");
+            CHECK_SAME(lp[0], rec["ln_phi"][0].number(), what + " ln phi");
+        }
+    }
+
+    // Vapour pressures against experiment, and the boiling temperature back from them.
+    for (size_t k = 0; k < cases["saturation"].size(); ++k) {
+        const auto& c = cases["saturation"][k];
+        const auto& rr = ref["saturation"][k]["result"];
+        const std::string id = c["id"].str;
+        Model m = model(c);
+        size_t comp = size_t(c["component"].number());
+        tl_saturation_point s = m.saturation_pressure(comp, c["temperature"].number());
+        double want = c["expected"]["pressure"].number();
+        CHECK(std::fabs(s.pressure - want) / want < c["expected"]["rel_tolerance"].number(),
+              id + ": p_sat " + t::num(s.pressure));
+        CHECK_SAME(s.pressure, rr["pressure"].number(), id + ": p_sat as Rust");
+        CHECK_SAME(s.liquid_molar_volume, rr["liquid_molar_volume"].number(), id + ": v_L as Rust");
+        CHECK_SAME(s.vapor_molar_volume, rr["vapor_molar_volume"].number(), id + ": v_V as Rust");
+        CHECK_SAME(s.enthalpy_of_vaporization, rr["enthalpy_of_vaporization"].number(), id + ": dh_vap as Rust");
+        CHECK(s.iterations == size_t(rr["iterations"].number()), id + ": iterations as Rust");
+        const auto& b = rr["boiling"];
+        tl_saturation_point tb{};
+        tl_status st = status_of_call([&] { tb = m.saturation_temperature(comp, s.pressure); });
+        CHECK(st == status_of(b), id + ": boiling status");
+        if (st == TL_STATUS_OK && status_of(b) == TL_STATUS_OK) {
+            CHECK_SAME(tb.temperature, b["temperature"].number(), id + ": T_b as Rust");
+            CHECK(std::fabs(tb.temperature - c["temperature"].number()) < 1e-6, id + ": T_b round trip");
+        }
+    }
+
+    // Batch sweep on one and two threads, as the Rust batch on the same thread counts.
+    {
+        const auto& b = ref["batch"];
+        const json::Value* bc = nullptr;
+        for (auto& c : cases["flash"].arr)
+            if (c["id"].str == b["case"].str) bc = &c;
+        CHECK(bc != nullptr, "batch case present");
+        if (bc) {
+            Model m = model(*bc);
+            auto temps = b["temperatures"].numbers();
+            std::vector<double> press(temps.size(), b["pressure"].number());
+            auto z = (*bc)["feed"].numbers();
+            for (const auto& run : b["runs"].arr) {
+                size_t threads = size_t(run["threads"].number());
+                tieline::BatchResult br = m.flash_batch(temps, press, z, threads, 2, &opts);
+                for (size_t i = 0; i < temps.size(); ++i) {
+                    const auto& rec = run["results"][i];
+                    std::string what = "batch/" + std::to_string(threads) + " point " + std::to_string(i);
+                    CHECK(br.status[i] == status_of(rec), what + ": status");
+                    if (br.status[i] != TL_STATUS_OK) continue;
+                    CHECK(br.num_phases[i] == rec["phases"].size(), what + ": phases");
+                    for (size_t k = 0; k < br.num_phases[i]; ++k) {
+                        const auto& rp = rec["phases"][k];
+                        CHECK_SAME(br.phase_fraction[i * 2 + k], rp["fraction"].number(), what + " fraction");
+                        CHECK_SAME(br.phase_molar_volume[i * 2 + k], rp["molar_volume"].number(), what + " v");
+                        auto rx = rp["composition"].numbers();
+                        for (size_t c = 0; c < rx.size(); ++c)
+                            CHECK_SAME(br.composition(i, k, c), rx[c], what + " x");
+                    }
+                    for (size_t k = br.num_phases[i]; k < 2; ++k)
+                        CHECK(br.phase_kind[i * 2 + k] == TL_PHASE_KIND_NONE && std::isnan(br.phase_fraction[i * 2 + k]),
+                              what + ": unused slot");
+                }
+            }
+        }
+    }
+    return t::finish("test_vectors");
+}

@@ -1,0 +1,36 @@
+#!/usr/bin/env bash
+# The whole test suite of tieline: formatting, lints, the Rust tests (core and validation
+# against published data), and, where present, the C/C++ and Python suites.
+# Run from anywhere; installs what it needs (the C and Python suites install their own tools).
+set -euo pipefail
+cd "$(dirname "$0")/.."
+
+step() { printf '\n==> %s\n' "$*"; }
+
+step "format check"
+cargo fmt --all -- --check
+
+step "clippy (all targets, warnings are errors)"
+cargo clippy --workspace --all-targets -- -D warnings
+
+step "documentation builds without warnings"
+RUSTDOCFLAGS="-D warnings" cargo doc --workspace --no-deps --quiet
+
+step "Rust tests (release build: the robustness sweeps run 2 x 10^4 flashes each)"
+cargo test --workspace --release
+
+step "command-line tool: demo and a JSON flash"
+cargo run --release --quiet -p tieline-examples --bin tieline -- demo > /dev/null
+cargo run --release --quiet -p tieline-examples --bin tieline -- flash -c methane,propane -t 250 -p 20bar -z 0.6,0.4 --json > /dev/null
+
+if [ -x ffi/run-tests.sh ]; then
+  step "C ABI and C++ tests"
+  ffi/run-tests.sh
+fi
+
+if [ -x python/run-tests.sh ]; then
+  step "Python package tests"
+  python/run-tests.sh
+fi
+
+step "all tests passed"

@@ -3,7 +3,7 @@
 //! A thin layer over the `tieline` crate: models and data banks as Python classes, scalar
 //! calls returning the record classes of `tieline._results`, vectorised calls taking flat numpy
 //! arrays and releasing the GIL while rayon computes. Errors map once to the exception classes
-//! of `tieline._errors` ([`errors`]). The public Python API and its docs live in the
+//! of `tieline._errors` (module `errors`). The public Python API and its docs live in the
 //! pure-Python package; this crate is its engine. Units are SI: K, Pa, mol, m3, J.
 
 mod errors;

@@ -1,0 +1,629 @@
+"""The functions of tieline: flashes, stability, saturation curves, bubble and dew points and
+phase properties, each taking a scalar point or numpy arrays (broadcast together).
+
+Units are SI everywhere: temperatures in K, pressures in Pa, amounts in mol (any positive
+amounts; fractions are derived), volumes in m3, energies in J.
+"""
+
+from __future__ import annotations
+
+import functools
+import numbers
+from typing import Any, Callable, List, Optional, Tuple, Union, overload
+
+import numpy as np
+from numpy.typing import ArrayLike
+
+from . import _core
+from ._core import Model
+from ._errors import _invalid
+from ._results import (
+    _KINDS,
+    BubbleDewCurve,
+    BubbleDewPoint,
+    FlashResult,
+    FlashSweep,
+    Properties,
+    PropertyTable,
+    SaturationCurve,
+    SaturationPoint,
+    StabilityResult,
+)
+
+__all__ = [
+    "flash",
+    "stability",
+    "saturation_pressure",
+    "saturation_temperature",
+    "bubble_pressure",
+    "dew_pressure",
+    "bubble_temperature",
+    "dew_temperature",
+    "phase_properties",
+    "set_threads",
+    "get_threads",
+]
+
+Progress = Callable[[int, int], Any]
+
+#: Default number of consecutive points that one warm-started solver context handles.
+DEFAULT_BLOCK = 64
+
+
+def _check_model(model: Any) -> None:
+    if not isinstance(model, Model):
+        raise _invalid("model", f"{type(model).__name__}; a tieline.Model is required")
+
+
+def _is_scalar(x: Any) -> bool:
+    if isinstance(x, (bool, np.bool_)):
+        return False
+    if isinstance(x, numbers.Real):
+        return True
+    return isinstance(x, np.ndarray) and x.ndim == 0
+
+
+def _scalar(x: Any, what: str) -> float:
+    if isinstance(x, (bool, np.bool_)):
+        raise _invalid(what, f"{x!r}; a number is required, not a bool")
+    try:
+        return float(x)
+    except (TypeError, ValueError):
+        raise _invalid(what, f"{x!r}; a number is required") from None
+
+
+def _array(x: Any, what: str) -> np.ndarray:
+    if isinstance(x, (bool, np.bool_, str, bytes)):
+        raise _invalid(what, f"{x!r}; numbers are required")
+    try:
+        a = np.asarray(x)
+    except (TypeError, ValueError):
+        raise _invalid(what, f"{x!r}; a number or an array of numbers is required") from None
+    if a.dtype == object or a.dtype.kind not in "iuf":
+        raise _invalid(what, f"array of dtype {a.dtype}; real numbers are required")
+    return np.asarray(a, dtype=np.float64)
+
+
+def _feed(model: Model, feed: Any, what: str = "feed") -> np.ndarray:
+    z = _array(feed, what)
+    nc = model.num_components
+    if z.ndim == 0 or z.shape[-1] != nc:
+        raise _invalid(
+            what,
+            f"shape {z.shape}; one amount per component ({nc}) is required, as a 1-D array "
+            f"or as rows of shape (..., {nc})",
+        )
+    return z
+
+
+def _on_error(on_error: str) -> bool:
+    if on_error == "raise":
+        return True
+    if on_error == "flag":
+        return False
+    raise _invalid("on_error", f"{on_error!r}; \"raise\" or \"flag\" is required")
+
+
+def _check_threads(threads: Optional[int]) -> Optional[int]:
+    if threads is None:
+        return None
+    if isinstance(threads, bool) or not isinstance(threads, numbers.Integral) or threads < 0:
+        raise _invalid("threads", f"{threads!r}; an integer >= 0 (0: one per core) is required")
+    return int(threads)
+
+
+def _check_progress(progress: Optional[Progress]) -> Optional[Progress]:
+    if progress is not None and not callable(progress):
+        raise _invalid("progress", f"{type(progress).__name__}; a callable progress(done, total) is required")
+    return progress
+
+
+def _broadcast(
+    model: Model, feed: Any, *coords: Tuple[Any, str]
+) -> Tuple[Tuple[int, ...], List[np.ndarray], np.ndarray, np.ndarray]:
+    """Broadcasts coordinate arrays with the feed rows: (shape, flat coords, flat feeds
+    (1 or N rows), the feed as stored in results)."""
+    arrays = [_array(c, what) for c, what in coords]
+    z = _feed(model, feed)
+    try:
+        shape = np.broadcast_shapes(*(a.shape for a in arrays), z.shape[:-1])
+    except ValueError:
+        shapes = ", ".join(f"{what} {a.shape}" for a, (_, what) in zip(arrays, coords))
+        raise _invalid(
+            "shapes",
+            f"{shapes} and feed {z.shape} do not broadcast together (numpy rules; the feed's "
+            "last axis is the component axis)",
+        ) from None
+    flat = [np.ascontiguousarray(np.broadcast_to(a, shape), dtype=np.float64).reshape(-1) for a in arrays]
+    nc = model.num_components
+    if z.ndim == 1:
+        zf = np.ascontiguousarray(z).reshape(1, nc)
+        stored = z.copy()
+    else:
+        stored = np.array(np.broadcast_to(z, shape + (nc,)), dtype=np.float64)
+        zf = stored.reshape(-1, nc)
+    return shape, flat, zf, stored
+
+
+def _failures(raw: List[Tuple[int, BaseException]], shape: Tuple[int, ...]) -> List[Tuple[Tuple[int, ...], BaseException]]:
+    out = []
+    for i, e in raw:
+        idx = tuple(int(k) for k in np.unravel_index(i, shape)) if shape else ()
+        out.append((idx, e))
+    return out
+
+
+@functools.lru_cache(maxsize=64)
+def _flash_options(
+    tolerance: Optional[float],
+    max_ss_iterations: Optional[int],
+    max_newton_iterations: Optional[int],
+    certificate: bool,
+    negative_flash: bool,
+) -> _core.FlashOptions:
+    return _core.FlashOptions(tolerance, max_ss_iterations, max_newton_iterations, certificate, negative_flash)
+
+
+@overload
+def flash(
+    model: Model,
+    temperature: float,
+    pressure: float,
+    feed: ArrayLike,
+    *,
+    tolerance: Optional[float] = ...,
+    certificate: bool = ...,
+    negative_flash: bool = ...,
+    max_ss_iterations: Optional[int] = ...,
+    max_newton_iterations: Optional[int] = ...,
+    block: int = ...,
+    threads: Optional[int] = ...,
+    progress: Optional[Progress] = ...,
+    on_error: str = ...,
+) -> Union[FlashResult, FlashSweep]: ...
+@overload
+def flash(
+    model: Model,
+    temperature: ArrayLike,
+    pressure: ArrayLike,
+    feed: ArrayLike,
+    *,
+    tolerance: Optional[float] = ...,
+    certificate: bool = ...,
+    negative_flash: bool = ...,
+    max_ss_iterations: Optional[int] = ...,
+    max_newton_iterations: Optional[int] = ...,
+    block: int = ...,
+    threads: Optional[int] = ...,
+    progress: Optional[Progress] = ...,
+    on_error: str = ...,
+) -> FlashSweep: ...
+def flash(
+    model: Model,
+    temperature: ArrayLike,
+    pressure: ArrayLike,
+    feed: ArrayLike,
+    *,
+    tolerance: Optional[float] = None,
+    certificate: bool = True,
+    negative_flash: bool = False,
+    max_ss_iterations: Optional[int] = None,
+    max_newton_iterations: Optional[int] = None,
+    block: int = DEFAULT_BLOCK,
+    threads: Optional[int] = None,
+    progress: Optional[Progress] = None,
+    on_error: str = "raise",
+) -> Union[FlashResult, FlashSweep]:
+    """Isothermal–isobaric (PT) flash: the phases of least Gibbs energy.
+
+    Parameters
+    ----------
+    model : Model
+        The fluid model.
+    temperature : float or array_like
+        Temperature(s), K.
+    pressure : float or array_like
+        Pressure(s), Pa.
+    feed : array_like
+        Feed amounts, mol (any positive amounts; only their ratios matter for fractions):
+        one 1-D row of ``nc`` values shared by every point, or rows of shape ``(..., nc)``.
+    tolerance : float, optional
+        Convergence tolerance on max_i |ln f_i^V − ln f_i^L| (default 1e-10).
+    certificate : bool
+        Compute the stability certificate of each result (an extra stability test).
+    negative_flash : bool
+        Also report the tie-line extension of single-phase feeds (scalar calls).
+    max_ss_iterations, max_newton_iterations : int, optional
+        Iteration limits of successive substitution and of Newton's method.
+    block : int
+        Vectorised calls: points are taken in consecutive blocks of this many, each solved
+        by one context that warm-starts from point to point (so order a sweep along T or p).
+        Results depend on the block layout but never on the number of threads.
+    threads : int, optional
+        Threads of a vectorised call (default: :func:`get_threads`).
+    progress : callable, optional
+        ``progress(done, total)`` is called about every 0.1 s during a vectorised call and
+        once at the end; an exception it raises stops the call. Ctrl-C also stops it.
+    on_error : {"raise", "flag"}
+        Vectorised calls: raise the error of the first failing point (default), or mark
+        failed points in ``ok`` and ``failures`` and fill their values with NaN.
+
+    Returns
+    -------
+    FlashResult
+        When temperature and pressure are scalars and the feed is 1-D.
+    FlashSweep
+        Otherwise: arrays of the broadcast shape of temperature, pressure and feed rows.
+
+    Raises
+    ------
+    InvalidInputError
+        Non-finite or non-positive T or p, negative amounts, wrong shapes.
+    ConvergenceError
+        The solver did not converge (its diagnostics are attributes of the exception).
+    """
+    _check_model(model)
+    opts = _flash_options(tolerance, max_ss_iterations, max_newton_iterations, bool(certificate), bool(negative_flash))
+    if _is_scalar(temperature) and _is_scalar(pressure):
+        z = _feed(model, feed)
+        if z.ndim == 1:
+            return _core.flash_point(
+                model, _scalar(temperature, "temperature"), _scalar(pressure, "pressure"), z, opts
+            )
+    if isinstance(block, bool) or not isinstance(block, numbers.Integral) or block < 1:
+        raise _invalid("block", f"{block!r}; an integer >= 1 is required")
+    raise_errors = _on_error(on_error)
+    shape, (t, p), zf, stored = _broadcast(model, feed, (temperature, "temperature"), (pressure, "pressure"))
+    raw = _core.flash_sweep(
+        model, t, p, zf, opts, int(block), _check_threads(threads), _check_progress(progress), raise_errors
+    )
+    nc = model.num_components
+    return FlashSweep(
+        components=model.components,
+        temperature=t.reshape(shape),
+        pressure=p.reshape(shape),
+        feed=stored,
+        num_phases=raw["num_phases"].reshape(shape),
+        vapor_fraction=raw["vapor_fraction"].reshape(shape),
+        phase_kind=_KINDS[raw["kind"]].reshape(shape + (2,)),
+        phase_fraction=raw["fraction"].reshape(shape + (2,)),
+        phase_amount=raw["amount"].reshape(shape + (2,)),
+        molar_volume=raw["molar_volume"].reshape(shape + (2,)),
+        z=raw["z"].reshape(shape + (2,)),
+        composition=raw["composition"].reshape(shape + (2, nc)),
+        ln_phi=raw["ln_phi"].reshape(shape + (2, nc)),
+        residual=raw["residual"].reshape(shape),
+        certificate=raw["certificate"].reshape(shape),
+        gibbs=raw["gibbs"].reshape(shape),
+        stability_iterations=raw["stability_iterations"].reshape(shape),
+        ss_iterations=raw["ss_iterations"].reshape(shape),
+        newton_iterations=raw["newton_iterations"].reshape(shape),
+        warm_start=raw["warm_start"].reshape(shape),
+        ok=raw["ok"].reshape(shape),
+        failures=_failures(raw["failures"], shape),
+    )
+
+
+def stability(
+    model: Model,
+    temperature: float,
+    pressure: float,
+    amounts: ArrayLike,
+    *,
+    tolerance: Optional[float] = None,
+    threshold: Optional[float] = None,
+) -> StabilityResult:
+    """Tangent-plane stability test of a phase of ``amounts`` (mol) at ``temperature`` (K)
+    and ``pressure`` (Pa).
+
+    Parameters
+    ----------
+    tolerance : float, optional
+        Convergence tolerance of each trial (default 1e-10).
+    threshold : float, optional
+        A stationary point counts as unstable below −threshold (default 1e-10).
+
+    Returns
+    -------
+    StabilityResult
+        Whether the phase is stable, the minimum tangent-plane distance (dimensionless) and
+        the stationary points found.
+    """
+    _check_model(model)
+    z = _feed(model, amounts, "amounts")
+    if z.ndim != 1:
+        raise _invalid("amounts", f"shape {z.shape}; stability() takes one phase, a 1-D array")
+    return _core.stability_point(
+        model, _scalar(temperature, "temperature"), _scalar(pressure, "pressure"), z, tolerance, threshold
+    )
+
+
+def _component(model: Model, component: Union[int, str]) -> int:
+    if isinstance(component, str):
+        return model.index(component)
+    if isinstance(component, bool) or not isinstance(component, numbers.Integral):
+        raise _invalid("component", f"{component!r}; an index or a component name is required")
+    if not 0 <= component < model.num_components:
+        raise _invalid("component", f"index {component} for a model of {model.num_components} components")
+    return int(component)
+
+
+def _saturation(
+    model: Model,
+    by: str,
+    values: ArrayLike,
+    component: Union[int, str],
+    tolerance: Optional[float],
+    max_iterations: Optional[int],
+    threads: Optional[int],
+    progress: Optional[Progress],
+    on_error: str,
+) -> Union[SaturationPoint, SaturationCurve]:
+    _check_model(model)
+    i = _component(model, component)
+    if _is_scalar(values):
+        return _core.saturation_point(model, by, _scalar(values, by), i, tolerance, max_iterations)
+    raise_errors = _on_error(on_error)
+    a = _array(values, by)
+    shape = a.shape
+    raw = _core.saturation_sweep(
+        model,
+        by,
+        np.ascontiguousarray(a).reshape(-1),
+        i,
+        tolerance,
+        max_iterations,
+        _check_threads(threads),
+        _check_progress(progress),
+        raise_errors,
+    )
+    names = (
+        "temperature",
+        "pressure",
+        "liquid_molar_volume",
+        "vapor_molar_volume",
+        "liquid_density",
+        "vapor_density",
+        "enthalpy_of_vaporization",
+        "residual",
+        "iterations",
+        "ok",
+    )
+    return SaturationCurve(
+        component=model.components[i],
+        failures=_failures(raw["failures"], shape),
+        **{n: raw[n].reshape(shape) for n in names},
+    )
+
+
+def saturation_pressure(
+    model: Model,
+    temperature: ArrayLike,
+    component: Union[int, str] = 0,
+    *,
+    tolerance: Optional[float] = None,
+    max_iterations: Optional[int] = None,
+    threads: Optional[int] = None,
+    progress: Optional[Progress] = None,
+    on_error: str = "raise",
+) -> Union[SaturationPoint, SaturationCurve]:
+    """Vapour pressure of a pure component at ``temperature`` (K), with the saturated
+    densities (mol/m3) and the enthalpy of vaporisation (J/mol).
+
+    ``component`` is an index or a name of one of the model's components. A scalar
+    temperature gives a :class:`SaturationPoint`; an array gives a :class:`SaturationCurve`
+    of the same shape, computed in parallel. At or above the critical temperature there is no
+    saturation state: :class:`NoSolutionError` (or a flagged point with ``on_error="flag"``).
+    ``threads``, ``progress`` and ``on_error`` act as in :func:`flash`.
+    """
+    return _saturation(model, "temperature", temperature, component, tolerance, max_iterations, threads, progress, on_error)
+
+
+def saturation_temperature(
+    model: Model,
+    pressure: ArrayLike,
+    component: Union[int, str] = 0,
+    *,
+    tolerance: Optional[float] = None,
+    max_iterations: Optional[int] = None,
+    threads: Optional[int] = None,
+    progress: Optional[Progress] = None,
+    on_error: str = "raise",
+) -> Union[SaturationPoint, SaturationCurve]:
+    """Boiling temperature (K) of a pure component at ``pressure`` (Pa), with the saturated
+    densities (mol/m3) and the enthalpy of vaporisation (J/mol); see
+    :func:`saturation_pressure` for the arguments and results."""
+    return _saturation(model, "pressure", pressure, component, tolerance, max_iterations, threads, progress, on_error)
+
+
+def _bubble_dew(
+    model: Model,
+    which: str,
+    coordinate: str,
+    values: ArrayLike,
+    feed: ArrayLike,
+    tolerance: Optional[float],
+    max_iterations: Optional[int],
+    threads: Optional[int],
+    progress: Optional[Progress],
+    on_error: str,
+) -> Union[BubbleDewPoint, BubbleDewCurve]:
+    _check_model(model)
+    if _is_scalar(values):
+        z = _feed(model, feed)
+        if z.ndim == 1:
+            return _core.bubble_dew_point(model, which, _scalar(values, coordinate), z, tolerance, max_iterations)
+    raise_errors = _on_error(on_error)
+    shape, (v,), zf, _ = _broadcast(model, feed, (values, coordinate))
+    raw = _core.bubble_dew_sweep(
+        model, which, v, zf, tolerance, max_iterations, _check_threads(threads), _check_progress(progress), raise_errors
+    )
+    nc = model.num_components
+    return BubbleDewCurve(
+        kind=which,
+        components=model.components,
+        temperature=raw["temperature"].reshape(shape),
+        pressure=raw["pressure"].reshape(shape),
+        incipient=raw["incipient"].reshape(shape + (nc,)),
+        k_values=raw["k_values"].reshape(shape + (nc,)),
+        feed_molar_volume=raw["feed_molar_volume"].reshape(shape),
+        incipient_molar_volume=raw["incipient_molar_volume"].reshape(shape),
+        residual=raw["residual"].reshape(shape),
+        iterations=raw["iterations"].reshape(shape),
+        ok=raw["ok"].reshape(shape),
+        failures=_failures(raw["failures"], shape),
+    )
+
+
+_BD_DOC = """{title} of a mixture of ``feed`` amounts (mol) at ``{given}``.
+
+    A scalar {given} with a 1-D feed gives a :class:`BubbleDewPoint` ({unknown} and the
+    incipient phase); arrays (broadcast with the feed rows) give a :class:`BubbleDewCurve`,
+    computed in parallel. Where no point exists (above the cricondentherm or cricondenbar,
+    for a pure-component feed above its critical point) :class:`NoSolutionError` or
+    :class:`ConvergenceError` is raised, or the point is flagged with ``on_error="flag"``.
+    ``threads``, ``progress`` and ``on_error`` act as in :func:`flash`.
+    """
+
+
+def bubble_pressure(
+    model: Model,
+    temperature: ArrayLike,
+    feed: ArrayLike,
+    *,
+    tolerance: Optional[float] = None,
+    max_iterations: Optional[int] = None,
+    threads: Optional[int] = None,
+    progress: Optional[Progress] = None,
+    on_error: str = "raise",
+) -> Union[BubbleDewPoint, BubbleDewCurve]:
+    return _bubble_dew(model, "bubble_pressure", "temperature", temperature, feed, tolerance, max_iterations, threads, progress, on_error)
+
+
+def dew_pressure(
+    model: Model,
+    temperature: ArrayLike,
+    feed: ArrayLike,
+    *,
+    tolerance: Optional[float] = None,
+    max_iterations: Optional[int] = None,
+    threads: Optional[int] = None,
+    progress: Optional[Progress] = None,
+    on_error: str = "raise",
+) -> Union[BubbleDewPoint, BubbleDewCurve]:
+    return _bubble_dew(model, "dew_pressure", "temperature", temperature, feed, tolerance, max_iterations, threads, progress, on_error)
+
+
+def bubble_temperature(
+    model: Model,
+    pressure: ArrayLike,
+    feed: ArrayLike,
+    *,
+    tolerance: Optional[float] = None,
+    max_iterations: Optional[int] = None,
+    threads: Optional[int] = None,
+    progress: Optional[Progress] = None,
+    on_error: str = "raise",
+) -> Union[BubbleDewPoint, BubbleDewCurve]:
+    return _bubble_dew(model, "bubble_temperature", "pressure", pressure, feed, tolerance, max_iterations, threads, progress, on_error)
+
+
+def dew_temperature(
+    model: Model,
+    pressure: ArrayLike,
+    feed: ArrayLike,
+    *,
+    tolerance: Optional[float] = None,
+    max_iterations: Optional[int] = None,
+    threads: Optional[int] = None,
+    progress: Optional[Progress] = None,
+    on_error: str = "raise",
+) -> Union[BubbleDewPoint, BubbleDewCurve]:
+    return _bubble_dew(model, "dew_temperature", "pressure", pressure, feed, tolerance, max_iterations, threads, progress, on_error)
+
+
+bubble_pressure.__doc__ = _BD_DOC.format(title="Bubble-point pressure (Pa)", given="temperature (K)", unknown="the pressure")
+dew_pressure.__doc__ = _BD_DOC.format(title="Dew-point pressure (Pa)", given="temperature (K)", unknown="the pressure") + (
+    "Where two dew points exist (retrograde region) the one reached from the low-pressure\n"
+    "    estimate is returned.\n"
+)
+bubble_temperature.__doc__ = _BD_DOC.format(title="Bubble-point temperature (K)", given="pressure (Pa)", unknown="the temperature")
+dew_temperature.__doc__ = _BD_DOC.format(title="Dew-point temperature (K)", given="pressure (Pa)", unknown="the temperature")
+
+
+_PROPERTY_NAMES = (
+    "molar_volume",
+    "molar_density",
+    "mass_density",
+    "molar_mass",
+    "z",
+    "enthalpy",
+    "entropy",
+    "gibbs",
+    "internal_energy",
+    "helmholtz",
+    "cp",
+    "cv",
+    "speed_of_sound",
+    "joule_thomson",
+    "isothermal_compressibility",
+    "thermal_expansion",
+    "residual_enthalpy",
+    "residual_entropy",
+    "residual_gibbs",
+)
+
+
+def phase_properties(
+    model: Model,
+    temperature: ArrayLike,
+    pressure: ArrayLike,
+    amounts: ArrayLike,
+    root: str = "stable",
+    *,
+    threads: Optional[int] = None,
+    on_error: str = "raise",
+) -> Union[Properties, PropertyTable]:
+    """Properties of a single phase of ``amounts`` (mol) at ``temperature`` (K) and
+    ``pressure`` (Pa) on a chosen volume root, without any phase-equilibrium calculation.
+
+    ``root`` is ``"stable"`` (the root of least Gibbs energy), ``"liquid"`` (the smallest
+    volume) or ``"vapor"`` (the largest); where the equation has a single root that one is
+    used, and the ``kind`` of the result says what it is. Scalars give :class:`Properties`;
+    arrays (broadcast with the rows of ``amounts``) give a :class:`PropertyTable`.
+    """
+    _check_model(model)
+    if _is_scalar(temperature) and _is_scalar(pressure):
+        z = _feed(model, amounts, "amounts")
+        if z.ndim == 1:
+            st = _core.PhaseState(model, _scalar(temperature, "temperature"), _scalar(pressure, "pressure"), z.tolist(), root)
+            return st.properties()
+    raise_errors = _on_error(on_error)
+    shape, (t, p), zf, _ = _broadcast(model, amounts, (temperature, "temperature"), (pressure, "pressure"))
+    raw = _core.properties_sweep(model, t, p, zf, root, _check_threads(threads), raise_errors)
+    nc = model.num_components
+    return PropertyTable(
+        components=model.components,
+        root=root,
+        temperature=t.reshape(shape),
+        pressure=p.reshape(shape),
+        kind=_KINDS[raw["kind"]].reshape(shape),
+        ln_phi=raw["ln_phi"].reshape(shape + (nc,)),
+        fugacity=raw["fugacity"].reshape(shape + (nc,)),
+        ok=raw["ok"].reshape(shape),
+        failures=_failures(raw["failures"], shape),
+        **{n: raw[n].reshape(shape) for n in _PROPERTY_NAMES},
+    )
+
+
+def set_threads(n: int) -> None:
+    """Sets the default number of threads of vectorised calls (0: one per core)."""
+    checked = _check_threads(n)
+    if checked is None:
+        raise _invalid("threads", "None; an integer >= 0 is required")
+    _core.set_threads(checked)
+
+
+def get_threads() -> int:
+    """The number of threads vectorised calls use by default."""
+    return _core.get_threads()

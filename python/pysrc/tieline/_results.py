@@ -1,0 +1,755 @@
+"""Result records of tieline: plain data with numpy attributes, ``to_dict()``, ``to_json()``
+and, when pandas is installed, ``to_dataframe()``.
+
+Units are SI throughout: K, Pa, mol, m3, J; molar quantities are per mol of phase.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import json
+from dataclasses import dataclass
+from typing import TYPE_CHECKING, Any, Dict, List, Optional, Tuple
+
+import numpy as np
+
+if TYPE_CHECKING:  # pragma: no cover
+    import pandas  # type: ignore[import-untyped, unused-ignore]
+
+    from ._core import Model, PhaseState
+
+__all__ = [
+    "Phase",
+    "TieLine",
+    "FlashDiagnostics",
+    "FlashResult",
+    "StationaryPoint",
+    "StabilityResult",
+    "SaturationPoint",
+    "BubbleDewPoint",
+    "Properties",
+    "FlashSweep",
+    "SaturationCurve",
+    "BubbleDewCurve",
+    "PropertyTable",
+]
+
+
+def _plain(v: Any) -> Any:
+    if isinstance(v, _Record):
+        return v.to_dict()
+    if isinstance(v, np.ndarray):
+        return v.tolist()
+    if isinstance(v, np.generic):
+        return v.item()
+    if isinstance(v, (list, tuple)):
+        return [_plain(x) for x in v]
+    if isinstance(v, dict):
+        return {k: _plain(x) for k, x in v.items()}
+    if isinstance(v, BaseException):
+        return {"type": type(v).__name__, "message": str(v), "index": getattr(v, "index", None)}
+    return v
+
+
+def _pandas() -> Any:
+    try:
+        import pandas
+    except ImportError as e:  # pragma: no cover - exercised only without pandas
+        raise ImportError(
+            "to_dataframe() needs pandas; install it with `pip install pandas` "
+            "(or `pip install tieline[pandas]`)"
+        ) from e
+    return pandas
+
+
+class _Record:
+    """Common behaviour of the result records."""
+
+    def to_dict(self) -> Dict[str, Any]:
+        """The record as plain Python data (lists instead of arrays), SI units."""
+        return {f.name: _plain(getattr(self, f.name)) for f in dataclasses.fields(self)}  # type: ignore[arg-type]
+
+    def to_json(self) -> str:
+        """The record as JSON text (see :meth:`to_dict`); non-finite numbers become null."""
+
+        def clean(v: Any) -> Any:
+            if isinstance(v, float) and not np.isfinite(v):
+                return None
+            if isinstance(v, list):
+                return [clean(x) for x in v]
+            if isinstance(v, dict):
+                return {k: clean(x) for k, x in v.items()}
+            return v
+
+        return json.dumps(clean(self.to_dict()))
+
+    def __eq__(self, other: object) -> bool:
+        if type(other) is not type(self):
+            return NotImplemented
+        return _same(self.to_dict(), other.to_dict())  # type: ignore[attr-defined]
+
+    __hash__ = None  # type: ignore[assignment]
+
+
+def _same(a: Any, b: Any) -> bool:
+    """Equality that treats NaN as equal to NaN (records hold NaN for absent values)."""
+    if isinstance(a, float) and isinstance(b, float):
+        return a == b or (a != a and b != b)
+    if isinstance(a, list) and isinstance(b, list):
+        return len(a) == len(b) and all(_same(x, y) for x, y in zip(a, b))
+    if isinstance(a, dict) and isinstance(b, dict):
+        return a.keys() == b.keys() and all(_same(a[k], b[k]) for k in a)
+    return bool(a == b)
+
+
+# ---------------------------------------------------------------------------------------------
+# Single points
+
+
+@dataclass(frozen=True, eq=False)
+class Phase(_Record):
+    """One phase of a flash result.
+
+    Attributes
+    ----------
+    kind : str
+        ``"vapor"``, ``"liquid"`` or ``"liquid2"`` (the lighter of two liquids). A fluid phase
+        is a liquid when the model calls its volume liquid-like; of two phases the lighter is
+        the vapour unless both are liquid-like.
+    amount : float
+        Amount of the phase, mol.
+    fraction : float
+        Amount of the phase over the total feed amount.
+    composition : numpy.ndarray
+        Mole fractions, one per component.
+    molar_volume : float
+        Molar volume, m3/mol.
+    z : float
+        Compressibility factor pv/(RT).
+    ln_phi : numpy.ndarray
+        Natural logarithms of the fugacity coefficients.
+    """
+
+    kind: str
+    amount: float
+    fraction: float
+    composition: np.ndarray
+    molar_volume: float
+    z: float
+    ln_phi: np.ndarray
+
+    @property
+    def molar_density(self) -> float:
+        """Molar density, mol/m3."""
+        return 1.0 / self.molar_volume
+
+    def fugacities(self, pressure: float) -> np.ndarray:
+        """Fugacities f_i = x_i φ_i p, Pa, at the flash pressure ``pressure`` (Pa)."""
+        return self.composition * np.exp(self.ln_phi) * pressure
+
+
+@dataclass(frozen=True, eq=False)
+class TieLine(_Record):
+    """The extension of the tie line through a single-phase feed (negative flash).
+
+    Attributes
+    ----------
+    beta : float
+        Vapour-side fraction, outside [0, 1] for a single-phase feed.
+    x, y : numpy.ndarray
+        Liquid-side and vapour-side mole fractions.
+    """
+
+    beta: float
+    x: np.ndarray
+    y: np.ndarray
+
+
+@dataclass(frozen=True, eq=False)
+class FlashDiagnostics(_Record):
+    """How a flash reached its answer.
+
+    Attributes
+    ----------
+    stability_iterations, ss_iterations, accelerations, newton_iterations : int
+        Iterations of the feed stability test, of successive substitution, accepted
+        accelerations, and Newton iterations.
+    residual : float
+        Final max_i |ln f_i^V − ln f_i^L| (0 for a single phase; dimensionless).
+    certificate : float or None
+        Minimum tangent-plane distance found by an independent stability test of the result
+        (dimensionless, per RT per mol); ≥ 0 up to round-off for a certified minimum. None
+        when switched off.
+    certificate_iterations : int
+        Iterations of that test.
+    warm_start : bool
+        Whether a warm start from the previous point was used and kept.
+    splits_tried : int
+        Two-phase splits tried.
+    gibbs : float
+        Reduced Gibbs energy of the result, Σ n_i (ln x_i + ln φ_i) per mol of feed,
+        relative to the pure ideal gases at T and p (dimensionless).
+    """
+
+    stability_iterations: int
+    ss_iterations: int
+    accelerations: int
+    newton_iterations: int
+    residual: float
+    certificate: Optional[float]
+    certificate_iterations: int
+    warm_start: bool
+    splits_tried: int
+    gibbs: float
+
+
+@dataclass(frozen=True, eq=False)
+class FlashResult(_Record):
+    """Result of a PT flash.
+
+    Attributes
+    ----------
+    temperature : float
+        Temperature, K.
+    pressure : float
+        Pressure, Pa.
+    feed : numpy.ndarray
+        Feed amounts, mol.
+    phases : tuple of Phase
+        The phases present: vapour first, then liquids by increasing density.
+    tie_line : TieLine or None
+        The tie-line extension of a single-phase feed, when asked for with
+        ``negative_flash=True`` and found.
+    diagnostics : FlashDiagnostics
+        Iterations, residual and stability certificate.
+    """
+
+    temperature: float
+    pressure: float
+    feed: np.ndarray
+    phases: Tuple[Phase, ...]
+    tie_line: Optional[TieLine]
+    diagnostics: FlashDiagnostics
+
+    @property
+    def num_phases(self) -> int:
+        """Number of phases present."""
+        return len(self.phases)
+
+    @property
+    def vapor_fraction(self) -> float:
+        """Vapour amount over feed amount (0 when there is no vapour)."""
+        return float(sum(p.fraction for p in self.phases if p.kind == "vapor"))
+
+    def phase(self, kind: str) -> Optional[Phase]:
+        """The first phase of ``kind`` (``"vapor"``, ``"liquid"``, ``"liquid2"``), or None."""
+        for p in self.phases:
+            if p.kind == kind:
+                return p
+        return None
+
+    def phase_states(self, model: "Model") -> List["PhaseState"]:
+        """The phases as :class:`PhaseState` objects of ``model`` (the model that was flashed)."""
+        from ._core import _phase_state
+
+        return [
+            _phase_state(
+                model,
+                self.temperature,
+                self.pressure,
+                list(p.composition * p.amount),
+                p.molar_volume * p.amount,
+                p.kind,
+            )
+            for p in self.phases
+        ]
+
+    def properties(self, model: "Model") -> List["Properties"]:
+        """Thermodynamic properties of each phase (see :class:`Properties`), SI units."""
+        return [s.properties() for s in self.phase_states(model)]
+
+    def to_dataframe(self) -> "pandas.DataFrame":
+        """One row per phase: kind, amount (mol), fraction, molar volume (m3/mol), Z and the
+        mole fractions ``x[i]`` (needs pandas)."""
+        pd = _pandas()
+        rows = []
+        for p in self.phases:
+            row: Dict[str, Any] = {
+                "kind": p.kind,
+                "amount": p.amount,
+                "fraction": p.fraction,
+                "molar_volume": p.molar_volume,
+                "z": p.z,
+            }
+            for i, x in enumerate(p.composition):
+                row[f"x[{i}]"] = x
+            rows.append(row)
+        return pd.DataFrame(rows)
+
+
+@dataclass(frozen=True, eq=False)
+class StationaryPoint(_Record):
+    """A stationary point of the tangent-plane distance.
+
+    Attributes
+    ----------
+    composition : numpy.ndarray
+        Normalised trial-phase mole fractions.
+    amounts : numpy.ndarray
+        Unnormalised trial amounts W (their ratio to the feed gives K-values).
+    tpd : float
+        Normalised tangent-plane distance −ln ΣW (dimensionless, per RT per mol).
+    liquid_like : bool
+        Whether the trial phase is liquid-like.
+    iterations : int
+        Iterations spent.
+    """
+
+    composition: np.ndarray
+    amounts: np.ndarray
+    tpd: float
+    liquid_like: bool
+    iterations: int
+
+
+@dataclass(frozen=True, eq=False)
+class StabilityResult(_Record):
+    """Result of a tangent-plane stability test.
+
+    Attributes
+    ----------
+    stable : bool
+        Whether no stationary point has a negative distance (below −threshold).
+    min_tpd : float
+        Minimum tangent-plane distance found (dimensionless; 0 if all trials were trivial).
+    points : tuple of StationaryPoint
+        The distinct non-trivial stationary points, most negative first.
+    iterations, trivial_trials, unconverged_trials : int
+        Total iterations, trials that collapsed to the feed, trials that hit the limit.
+    """
+
+    stable: bool
+    min_tpd: float
+    points: Tuple[StationaryPoint, ...]
+    iterations: int
+    trivial_trials: int
+    unconverged_trials: int
+
+
+@dataclass(frozen=True, eq=False)
+class SaturationPoint(_Record):
+    """A vapour–liquid saturation state of a pure component.
+
+    Attributes
+    ----------
+    temperature : float
+        Temperature, K.
+    pressure : float
+        Vapour pressure, Pa.
+    liquid_molar_volume, vapor_molar_volume : float
+        Saturated molar volumes, m3/mol.
+    liquid_density, vapor_density : float
+        Saturated molar densities, mol/m3.
+    enthalpy_of_vaporization : float
+        h_V − h_L, J/mol.
+    residual : float
+        Final |ln φ_L − ln φ_V|.
+    iterations : int
+        Iterations used.
+    """
+
+    temperature: float
+    pressure: float
+    liquid_molar_volume: float
+    vapor_molar_volume: float
+    liquid_density: float
+    vapor_density: float
+    enthalpy_of_vaporization: float
+    residual: float
+    iterations: int
+
+
+@dataclass(frozen=True, eq=False)
+class BubbleDewPoint(_Record):
+    """A bubble or dew point of a mixture.
+
+    Attributes
+    ----------
+    kind : str
+        ``"bubble_pressure"``, ``"dew_pressure"``, ``"bubble_temperature"`` or
+        ``"dew_temperature"``.
+    temperature : float
+        Temperature, K.
+    pressure : float
+        Pressure, Pa.
+    feed : numpy.ndarray
+        Mole fractions of the bulk phase.
+    incipient : numpy.ndarray
+        Mole fractions of the incipient phase (vapour at a bubble point, liquid at a dew point).
+    k_values : numpy.ndarray
+        K-values y_i/x_i.
+    feed_molar_volume, incipient_molar_volume : float
+        Molar volumes of the bulk and incipient phases, m3/mol.
+    residual : float
+        Final max |ln f_i^V − ln f_i^L|.
+    ss_iterations, newton_iterations : int
+        Successive-substitution and Newton iterations.
+    """
+
+    kind: str
+    temperature: float
+    pressure: float
+    feed: np.ndarray
+    incipient: np.ndarray
+    k_values: np.ndarray
+    feed_molar_volume: float
+    incipient_molar_volume: float
+    residual: float
+    ss_iterations: int
+    newton_iterations: int
+
+
+@dataclass(frozen=True, eq=False)
+class Properties(_Record):
+    """Thermodynamic properties of one phase (molar quantities per mol of phase, SI units).
+
+    Energies are absolute, referred to the ideal gases at 298.15 K and 1e5 Pa with h equal to
+    the enthalpy of formation and g to the Gibbs energy of formation.
+
+    Attributes
+    ----------
+    kind : str
+        ``"vapor"`` or ``"liquid"``.
+    temperature, pressure : float
+        K, Pa.
+    composition : numpy.ndarray
+        Mole fractions.
+    molar_volume, molar_density, mass_density, molar_mass : float
+        m3/mol, mol/m3, kg/m3, kg/mol.
+    z : float
+        Compressibility factor.
+    ln_phi, fugacity : numpy.ndarray
+        ln φ_i and fugacities f_i = x_i φ_i p (Pa).
+    enthalpy, entropy, gibbs, internal_energy, helmholtz : float
+        J/mol, J/(mol K), J/mol, J/mol, J/mol.
+    cp, cv : float
+        Isobaric and isochoric heat capacities, J/(mol K).
+    speed_of_sound : float
+        m/s.
+    joule_thomson : float
+        (∂T/∂p)_h, K/Pa.
+    isothermal_compressibility, thermal_expansion : float
+        1/Pa, 1/K.
+    residual_enthalpy, residual_entropy, residual_gibbs : float
+        Departures from the ideal gas at the same T and p: J/mol, J/(mol K), J/mol.
+    """
+
+    kind: str
+    temperature: float
+    pressure: float
+    composition: np.ndarray
+    molar_volume: float
+    molar_density: float
+    mass_density: float
+    molar_mass: float
+    z: float
+    ln_phi: np.ndarray
+    fugacity: np.ndarray
+    enthalpy: float
+    entropy: float
+    gibbs: float
+    internal_energy: float
+    helmholtz: float
+    cp: float
+    cv: float
+    speed_of_sound: float
+    joule_thomson: float
+    isothermal_compressibility: float
+    thermal_expansion: float
+    residual_enthalpy: float
+    residual_entropy: float
+    residual_gibbs: float
+
+
+# ---------------------------------------------------------------------------------------------
+# Many points
+
+_KINDS = np.array(["", "vapor", "liquid", "liquid2", "solid", "other"])
+
+
+def _frame_columns(names: List[str], prefix: str, values: np.ndarray) -> Dict[str, np.ndarray]:
+    return {f"{prefix}{n}": values[..., i].ravel() for i, n in enumerate(names)}
+
+
+@dataclass(frozen=True, eq=False)
+class FlashSweep(_Record):
+    """Results of a vectorised PT flash: arrays shaped like the broadcast inputs.
+
+    With ``shape`` the broadcast shape of temperature, pressure and the feed rows, each
+    point holds up to two phases in "slots" (slot 0 the lighter, slot 1 the denser); an
+    absent phase has kind ``""`` and NaN values.
+
+    Attributes
+    ----------
+    components : list of str
+        Component names.
+    temperature, pressure : numpy.ndarray
+        K and Pa, of ``shape``.
+    feed : numpy.ndarray
+        Feed amounts, mol: ``(nc,)`` when shared by every point, else ``shape + (nc,)``.
+    num_phases : numpy.ndarray of int
+        Phases present at each point (0 where the point failed).
+    vapor_fraction : numpy.ndarray
+        Vapour amount over feed amount.
+    phase_kind : numpy.ndarray of str, ``shape + (2,)``
+        ``"vapor"``, ``"liquid"``, ``"liquid2"`` or ``""`` per slot.
+    phase_fraction, phase_amount, molar_volume, z : numpy.ndarray, ``shape + (2,)``
+        Phase fraction, amount (mol), molar volume (m3/mol) and compressibility per slot.
+    composition, ln_phi : numpy.ndarray, ``shape + (2, nc)``
+        Mole fractions and ln φ per slot.
+    residual, certificate, gibbs : numpy.ndarray
+        Final fugacity residual, stability certificate (NaN when switched off) and reduced
+        Gibbs energy per mol of feed (dimensionless).
+    stability_iterations, ss_iterations, newton_iterations : numpy.ndarray of int
+        Iterations per point.
+    warm_start : numpy.ndarray of bool
+        Whether the point was warm-started from the previous point of its block.
+    ok : numpy.ndarray of bool
+        False where the point failed (only with ``on_error="flag"``).
+    failures : list of (tuple, TielineError)
+        The index in ``shape`` and the exception of each failed point.
+    """
+
+    components: List[str]
+    temperature: np.ndarray
+    pressure: np.ndarray
+    feed: np.ndarray
+    num_phases: np.ndarray
+    vapor_fraction: np.ndarray
+    phase_kind: np.ndarray
+    phase_fraction: np.ndarray
+    phase_amount: np.ndarray
+    molar_volume: np.ndarray
+    z: np.ndarray
+    composition: np.ndarray
+    ln_phi: np.ndarray
+    residual: np.ndarray
+    certificate: np.ndarray
+    gibbs: np.ndarray
+    stability_iterations: np.ndarray
+    ss_iterations: np.ndarray
+    newton_iterations: np.ndarray
+    warm_start: np.ndarray
+    ok: np.ndarray
+    failures: List[Tuple[Tuple[int, ...], BaseException]]
+
+    @property
+    def shape(self) -> Tuple[int, ...]:
+        """The broadcast shape of the inputs."""
+        return tuple(self.temperature.shape)
+
+    def __len__(self) -> int:
+        return int(self.temperature.size)
+
+    def _of_kind(self, kind: str) -> np.ndarray:
+        mask = self.phase_kind == kind
+        first = np.where(mask[..., 0], 0, 1)
+        has = mask.any(axis=-1)
+        comp = np.take_along_axis(self.composition, first[..., None, None], axis=-2)[..., 0, :]
+        return np.where(has[..., None], comp, np.nan)
+
+    @property
+    def vapor_composition(self) -> np.ndarray:
+        """Mole fractions of the vapour, ``shape + (nc,)``; NaN where there is no vapour."""
+        return self._of_kind("vapor")
+
+    @property
+    def liquid_composition(self) -> np.ndarray:
+        """Mole fractions of the (denser) liquid, ``shape + (nc,)``; NaN where there is none."""
+        return self._of_kind("liquid")
+
+    def to_dataframe(self) -> "pandas.DataFrame":
+        """One row per point: T (K), p (Pa), phases, vapour fraction, then per slot k = 0, 1
+        the kind, fraction, molar volume (m3/mol) and mole fractions ``x{k}_<name>``, and the
+        diagnostics (needs pandas)."""
+        pd = _pandas()
+        cols: Dict[str, Any] = {
+            "temperature": self.temperature.ravel(),
+            "pressure": self.pressure.ravel(),
+            "num_phases": self.num_phases.ravel(),
+            "vapor_fraction": self.vapor_fraction.ravel(),
+        }
+        for k in range(2):
+            cols[f"kind{k}"] = self.phase_kind[..., k].ravel()
+            cols[f"fraction{k}"] = self.phase_fraction[..., k].ravel()
+            cols[f"molar_volume{k}"] = self.molar_volume[..., k].ravel()
+            cols.update(_frame_columns(self.components, f"x{k}_", self.composition[..., k, :]))
+        for name in ("residual", "certificate", "gibbs", "ss_iterations", "newton_iterations", "ok"):
+            cols[name] = getattr(self, name).ravel()
+        return pd.DataFrame(cols)
+
+
+@dataclass(frozen=True, eq=False)
+class SaturationCurve(_Record):
+    """Saturation states of a pure component at many temperatures (or pressures).
+
+    Attributes
+    ----------
+    component : str
+        The component.
+    temperature, pressure : numpy.ndarray
+        K and Pa (the given coordinate is kept where a point failed).
+    liquid_molar_volume, vapor_molar_volume : numpy.ndarray
+        m3/mol.
+    liquid_density, vapor_density : numpy.ndarray
+        Molar densities, mol/m3.
+    enthalpy_of_vaporization : numpy.ndarray
+        J/mol.
+    residual : numpy.ndarray
+        Final |ln φ_L − ln φ_V|.
+    iterations : numpy.ndarray of int
+        Iterations per point.
+    ok : numpy.ndarray of bool
+        False where the point failed (only with ``on_error="flag"``).
+    failures : list of (tuple, TielineError)
+        Index and exception of each failed point.
+    """
+
+    component: str
+    temperature: np.ndarray
+    pressure: np.ndarray
+    liquid_molar_volume: np.ndarray
+    vapor_molar_volume: np.ndarray
+    liquid_density: np.ndarray
+    vapor_density: np.ndarray
+    enthalpy_of_vaporization: np.ndarray
+    residual: np.ndarray
+    iterations: np.ndarray
+    ok: np.ndarray
+    failures: List[Tuple[Tuple[int, ...], BaseException]]
+
+    def __len__(self) -> int:
+        return int(self.temperature.size)
+
+    def to_dataframe(self) -> "pandas.DataFrame":
+        """One row per point, one column per array attribute (needs pandas)."""
+        pd = _pandas()
+        names = [f.name for f in dataclasses.fields(self) if f.name not in ("component", "failures")]
+        return pd.DataFrame({n: getattr(self, n).ravel() for n in names})
+
+
+@dataclass(frozen=True, eq=False)
+class BubbleDewCurve(_Record):
+    """Bubble or dew points of a mixture at many temperatures (or pressures).
+
+    Attributes
+    ----------
+    kind : str
+        ``"bubble_pressure"``, ``"dew_pressure"``, ``"bubble_temperature"`` or
+        ``"dew_temperature"``.
+    components : list of str
+        Component names.
+    temperature, pressure : numpy.ndarray
+        K and Pa (the given coordinate is kept where a point failed).
+    incipient, k_values : numpy.ndarray, ``shape + (nc,)``
+        Incipient-phase mole fractions and K-values.
+    feed_molar_volume, incipient_molar_volume : numpy.ndarray
+        m3/mol.
+    residual : numpy.ndarray
+        Final fugacity residual.
+    iterations : numpy.ndarray of int
+        Successive-substitution plus Newton iterations.
+    ok : numpy.ndarray of bool
+        False where no point was found (only with ``on_error="flag"``).
+    failures : list of (tuple, TielineError)
+        Index and exception of each failed point.
+    """
+
+    kind: str
+    components: List[str]
+    temperature: np.ndarray
+    pressure: np.ndarray
+    incipient: np.ndarray
+    k_values: np.ndarray
+    feed_molar_volume: np.ndarray
+    incipient_molar_volume: np.ndarray
+    residual: np.ndarray
+    iterations: np.ndarray
+    ok: np.ndarray
+    failures: List[Tuple[Tuple[int, ...], BaseException]]
+
+    def __len__(self) -> int:
+        return int(self.temperature.size)
+
+    def to_dataframe(self) -> "pandas.DataFrame":
+        """One row per point: T (K), p (Pa), incipient mole fractions ``y_<name>`` and the
+        rest (needs pandas)."""
+        pd = _pandas()
+        cols: Dict[str, Any] = {"temperature": self.temperature.ravel(), "pressure": self.pressure.ravel()}
+        cols.update(_frame_columns(self.components, "incipient_", self.incipient))
+        cols.update(_frame_columns(self.components, "k_", self.k_values))
+        for n in ("feed_molar_volume", "incipient_molar_volume", "residual", "iterations", "ok"):
+            cols[n] = getattr(self, n).ravel()
+        return pd.DataFrame(cols)
+
+
+@dataclass(frozen=True, eq=False)
+class PropertyTable(_Record):
+    """Properties of single phases at many points (see :class:`Properties` for the meaning
+    and units of each attribute); arrays shaped like the broadcast inputs, ``ln_phi`` and
+    ``fugacity`` with a trailing component axis.
+
+    Attributes
+    ----------
+    components : list of str
+        Component names.
+    root : str
+        The volume root asked for: ``"stable"``, ``"liquid"`` or ``"vapor"``.
+    kind : numpy.ndarray of str
+        The kind of phase found on that root at each point.
+    ok : numpy.ndarray of bool
+        False where the point failed (only with ``on_error="flag"``).
+    failures : list of (tuple, TielineError)
+        Index and exception of each failed point.
+    """
+
+    components: List[str]
+    root: str
+    temperature: np.ndarray
+    pressure: np.ndarray
+    kind: np.ndarray
+    molar_volume: np.ndarray
+    molar_density: np.ndarray
+    mass_density: np.ndarray
+    molar_mass: np.ndarray
+    z: np.ndarray
+    ln_phi: np.ndarray
+    fugacity: np.ndarray
+    enthalpy: np.ndarray
+    entropy: np.ndarray
+    gibbs: np.ndarray
+    internal_energy: np.ndarray
+    helmholtz: np.ndarray
+    cp: np.ndarray
+    cv: np.ndarray
+    speed_of_sound: np.ndarray
+    joule_thomson: np.ndarray
+    isothermal_compressibility: np.ndarray
+    thermal_expansion: np.ndarray
+    residual_enthalpy: np.ndarray
+    residual_entropy: np.ndarray
+    residual_gibbs: np.ndarray
+    ok: np.ndarray
+    failures: List[Tuple[Tuple[int, ...], BaseException]]
+
+    def __len__(self) -> int:
+        return int(self.temperature.size)
+
+    def to_dataframe(self) -> "pandas.DataFrame":
+        """One row per point, one column per scalar property (needs pandas)."""
+        pd = _pandas()
+        skip = ("components", "root", "failures", "ln_phi", "fugacity")
+        names = [f.name for f in dataclasses.fields(self) if f.name not in skip]
+        cols: Dict[str, Any] = {n: getattr(self, n).ravel() for n in names}
+        cols.update(_frame_columns(self.components, "fugacity_", self.fugacity))
+        return pd.DataFrame(cols)

@@ -1,0 +1,149 @@
+"""The Python package gives the same numbers as the Rust core, bit for bit.
+
+The reference file is written by python/tests/rust_reference.rs (cargo test) from the same
+inputs; every float is compared exactly (JSON keeps the shortest round-trip form).
+"""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pytest
+
+import tieline as tl
+
+from conftest import VECTORS
+
+CASES = json.loads(VECTORS.read_text())
+
+
+def outcome(call):
+    try:
+        return call().to_dict()
+    except tl.TielineError as e:
+        kinds = {
+            tl.UnknownComponentError: "UnknownComponent",
+            tl.InvalidInputError: "InvalidInput",
+            tl.OutsideValidityError: "OutsideValidity",
+            tl.NoSolutionError: "NoSolution",
+            tl.ConvergenceError: "NotConverged",
+            tl.DataError: "Data",
+        }
+        return {"error": next(v for k, v in kinds.items() if isinstance(e, k))}
+
+
+def without_kind(d):
+    d = dict(d)
+    d.pop("kind", None)
+    return d
+
+
+def test_shared_vectors_bit_for_bit(rust_reference):
+    ref = rust_reference["cases"]
+    checked = 0
+    for c in CASES["flash"]:
+        def run(c=c):
+            m = tl.Model.from_description(c["model"])
+            return tl.flash(m, c["temperature"], c["pressure"], c["feed"])
+        assert outcome(run) == ref[f"flash/{c['id']}"], c["id"]
+        checked += 1
+    for c in CASES["stability"]:
+        def run(c=c):
+            m = tl.Model.from_description(c["model"])
+            return tl.stability(m, c["temperature"], c["pressure"], c["feed"])
+        assert outcome(run) == ref[f"stability/{c['id']}"], c["id"]
+        checked += 1
+    for c in CASES["volumes"]:
+        for root in ("vapor", "liquid"):
+            def run(c=c, root=root):
+                m = tl.Model.from_description(c["model"])
+                return tl.phase_properties(m, c["temperature"], c["pressure"], c["feed"], root)
+            got = outcome(run)
+            assert without_kind(got) == ref[f"volumes/{c['id']}/{root}"], c["id"]
+            checked += 1
+    for c in CASES["saturation"]:
+        def run(c=c):
+            m = tl.Model.from_description(c["model"])
+            return tl.saturation_pressure(m, c["temperature"], c["component"])
+        assert outcome(run) == ref[f"saturation/{c['id']}"], c["id"]
+        checked += 1
+    assert checked == len(ref)
+
+
+def test_sweep_bit_for_bit(rust_reference):
+    b = rust_reference["binary"]
+    m = tl.Model.from_description(b["model"])
+    sw = b["sweep"]
+    t = np.array(sw["temperature"])
+    p = np.array(sw["pressure"])
+    for threads in (1, 2):
+        res = tl.flash(m, t, p, b["feed"], block=sw["block"], threads=threads)
+        for i, want in enumerate(sw["results"]):
+            n = len(want["phases"])
+            assert res.num_phases[i] == n
+            assert res.vapor_fraction[i] == sum(ph["fraction"] for ph in want["phases"] if ph["kind"] == "vapor")
+            for k, ph in enumerate(want["phases"]):
+                assert res.phase_kind[i, k] == ph["kind"]
+                assert res.phase_fraction[i, k] == ph["fraction"]
+                assert res.phase_amount[i, k] == ph["amount"]
+                assert res.molar_volume[i, k] == ph["molar_volume"]
+                assert res.z[i, k] == ph["z"]
+                assert res.composition[i, k].tolist() == ph["composition"]
+                assert res.ln_phi[i, k].tolist() == ph["ln_phi"]
+            d = want["diagnostics"]
+            assert res.residual[i] == d["residual"]
+            assert res.certificate[i] == d["certificate"]
+            assert res.gibbs[i] == d["gibbs"]
+            assert res.ss_iterations[i] == d["ss_iterations"]
+            assert res.newton_iterations[i] == d["newton_iterations"]
+            assert bool(res.warm_start[i]) == d["warm_start"]
+
+
+def test_curves_bit_for_bit(rust_reference):
+    b = rust_reference["binary"]
+    m = tl.Model.from_description(b["model"])
+    cv = b["curves"]
+    t = np.array(cv["temperature"])
+    for name, fn in (("bubble_pressure", tl.bubble_pressure), ("dew_pressure", tl.dew_pressure)):
+        curve = fn(m, t, b["feed"], on_error="flag")
+        for i, want in enumerate(cv[name]):
+            scalar = outcome(lambda: fn(m, float(t[i]), b["feed"]))
+            assert scalar == want, (name, i)
+            if "error" in want:
+                assert not curve.ok[i]
+            else:
+                assert curve.ok[i]
+                assert curve.pressure[i] == want["pressure"]
+                assert curve.incipient[i].tolist() == want["incipient"]
+                assert curve.k_values[i].tolist() == want["k_values"]
+    sat = tl.saturation_pressure(m, t, 1, on_error="flag")
+    for i, want in enumerate(cv["saturation_pressure_component1"]):
+        if "error" in want:
+            assert not sat.ok[i]
+            continue
+        for key in ("pressure", "liquid_density", "vapor_density", "enthalpy_of_vaporization", "residual"):
+            assert getattr(sat, key)[i] == want[key], key
+    tp = np.array(cv["saturation_temperature_pressure"])
+    tsat = tl.saturation_temperature(m, tp, "n-butane", on_error="flag")
+    for i, want in enumerate(cv["saturation_temperature_component1"]):
+        assert outcome(lambda: tl.saturation_temperature(m, float(tp[i]), 1)) == want
+        if "error" not in want:
+            assert tsat.temperature[i] == want["temperature"]
+
+
+def test_properties_bit_for_bit(rust_reference):
+    b = rust_reference["binary"]
+    m = tl.Model.from_description(b["model"])
+    sw = b["sweep"]
+    n = len(b["properties_stable"])
+    t = np.array(sw["temperature"][:n])
+    p = np.array(sw["pressure"][:n])
+    table = tl.phase_properties(m, t, p, b["feed"], on_error="flag")
+    for i, want in enumerate(b["properties_stable"]):
+        got = outcome(lambda: tl.phase_properties(m, float(t[i]), float(p[i]), b["feed"]))
+        assert without_kind(got) == want
+        if "error" not in want:
+            assert table.gibbs[i] == want["gibbs"]
+            assert table.enthalpy[i] == want["enthalpy"]
+            assert table.speed_of_sound[i] == want["speed_of_sound"]

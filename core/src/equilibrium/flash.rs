@@ -960,9 +960,15 @@ impl FlashContext {
             } else {
                 (parts[1], parts[0])
             };
-            let kinds = match (a.2.liquid_like, b.2.liquid_like) {
-                (true, true) => [PhaseKind::Liquid2, PhaseKind::Liquid],
-                _ => [PhaseKind::Vapor, PhaseKind::Liquid],
+            // Both liquid-like by volume is a liquid–liquid split only if the lighter phase is
+            // also below its pseudo-critical temperature by Kay's rule, T_pc = Σ x_i Tc_i
+            // (W. B. Kay, Ind. Eng. Chem. 28 (1936) 1014, from memory); near a vapour–liquid
+            // critical point both phases are dense but the lighter one is the vapour.
+            let kay: f64 = (0..nc).map(|i| a.1[i] * model.critical_constants(i).tc).sum();
+            let kinds = if a.2.liquid_like && b.2.liquid_like && t < kay {
+                [PhaseKind::Liquid2, PhaseKind::Liquid]
+            } else {
+                [PhaseKind::Vapor, PhaseKind::Liquid]
             };
             for (k, (frac, comp, phi)) in [a, b].into_iter().enumerate() {
                 let ph = &mut r.phases[k];

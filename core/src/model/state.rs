@@ -11,9 +11,10 @@ use serde::{Deserialize, Serialize};
 /// Naming rule: a fluid phase is `Liquid` when the model calls its volume liquid-like
 /// ([`FluidModel::is_liquid_like`]; for cubic equations, molar volume below the equation's own
 /// v_c/b ratio times the mixture co-volume) and `Vapor` otherwise. In a two-phase fluid
-/// result the lighter phase is named `Vapor` and the denser `Liquid` unless both are
-/// liquid-like (a liquid–liquid split: `Liquid` and `Liquid2`, the denser first) or both are
-/// vapour-like (`Vapor` and `Liquid`, by density, since two gases cannot split).
+/// result the lighter phase is named `Vapor` and the denser `Liquid`, unless both are
+/// liquid-like and the temperature is below the lighter phase's pseudo-critical temperature by
+/// Kay's rule (T_pc = Σ x_i Tc_i): then it is a liquid–liquid split, reported as `Liquid2`
+/// (the lighter, listed first) and `Liquid`.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]
 #[non_exhaustive]

@@ -22,6 +22,7 @@ cargo test --workspace --release
 step "command-line tool: demo and a JSON flash"
 cargo run --release --quiet -p tieline-examples --bin tieline -- demo > /dev/null
 cargo run --release --quiet -p tieline-examples --bin tieline -- flash -c methane,propane -t 250 -p 20bar -z 0.6,0.4 --json > /dev/null
+cargo run --release --quiet -p tieline-examples --bin tieline -- saturation -c water -e iapws95 -p 1atm --json > /dev/null
 
 if [ -x ffi/run-tests.sh ]; then
   step "C ABI and C++ tests"

@@ -33,7 +33,7 @@ struct ModelArgs {
     /// Components by name, alias or CAS number, comma-separated (e.g. methane,ethane,CO2).
     #[arg(short = 'c', long, value_delimiter = ',')]
     components: Vec<String>,
-    /// Equation of state: pr, pr78 or srk.
+    /// Equation of state: pr, pr78, srk, or iapws95 (water only).
     #[arg(short = 'e', long, default_value = "pr")]
     equation: String,
     /// Binary interaction parameter `i,j,k0` or `i,j,k0,k1` (k_ij = k0 + k1·T), repeatable; indices from 0.
@@ -166,6 +166,16 @@ fn model(a: &ModelArgs) -> Result<Model> {
             "components",
             "give --components a,b,... or --model FILE",
         ));
+    }
+    if a.equation.eq_ignore_ascii_case("iapws95") {
+        // The reference formulation for water: one component, no interaction parameters.
+        if a.components.len() != 1 || bank.get(&a.components[0])?.cas != "7732-18-5" {
+            return Err(Error::invalid(
+                "equation",
+                "iapws95 describes water alone: use -c water",
+            ));
+        }
+        return Ok(Model::Iapws95(tieline::model::Iapws95::new()));
     }
     build_model(&bank, &a.components, parse_kind(&a.equation)?, &a.kij, a.peneloux)
 }

@@ -503,20 +503,12 @@ impl FlashContext {
     /// compositions, ln φ of both phases, G, and the residual. Returns `false` when the
     /// Rachford–Rice equation has no root.
     fn eval_split<M: FluidModel + ?Sized>(&mut self, model: &M, t: f64, p: f64) -> Result<bool> {
+        if !self.rr_split() {
+            return Ok(false);
+        }
         let nc = self.nc;
         let ws = &mut self.ws;
-        for i in 0..nc {
-            ws.k[i] = ws.lnk[i].exp();
-        }
-        let Ok(rr) = rachford_rice::solve(&ws.z, &ws.k, true) else {
-            return Ok(false);
-        };
         let s = &mut self.split;
-        s.beta = rr.beta;
-        s.omb = rr.one_minus_beta;
-        rachford_rice::compositions(&ws.z, &ws.k, &rr, &mut s.x, &mut s.y);
-        normalise(&mut s.x);
-        normalise(&mut s.y);
         ln_phi(
             model,
             t,
@@ -549,7 +541,6 @@ impl FlashContext {
             }
         }
         s.residual = err;
-        let _ = rr.region;
         Ok(true)
     }
 

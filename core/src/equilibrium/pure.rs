@@ -187,7 +187,7 @@ impl<'a, F: FluidModel + ?Sized> PurePhases<'a, F> {
         v
     }
 
-    /// The phase at (T [K], p [Pa]), or `None` if that fluid root does not exist there or the
+    /// The phase at (T (K), p (Pa)), or `None` if that fluid root does not exist there or the
     /// phase's model is not valid there (outside its range, or no density root). Errors only
     /// for invalid input.
     pub fn evaluate(&self, phase: PurePhase, t: f64, p: f64) -> Result<Option<PhasePoint>> {
@@ -260,7 +260,7 @@ impl<'a, F: FluidModel + ?Sized> PurePhases<'a, F> {
         })
     }
 
-    /// The stable phase at (T [K], p [Pa]): least molar Gibbs energy among the fluid roots and
+    /// The stable phase at (T (K), p (Pa)): least molar Gibbs energy among the fluid roots and
     /// the solids that exist there.
     pub fn stable_phase(&self, t: f64, p: f64) -> Result<StablePhase> {
         let mut c = Vec::new();

@@ -18,7 +18,7 @@
 //!   [`Iapws95::saturation_at_pressure`]. These are what the release's tables check.
 //! * **Library (molar)**: [`Iapws95`] implements [`FluidModel`] for one component, "water",
 //!   with M = 18.015268 g/mol, so every solver of the library (stability, flash, saturation,
-//!   pure-substance phase equilibrium) works with it, and [`PhaseState::properties`]
+//!   pure-substance phase equilibrium) works with it, and [`PhaseState::properties`](crate::model::PhaseState::properties)
 //!   gives molar properties in J/mol, J/(mol K).
 //!
 //! # Reference state of the molar interface
@@ -588,7 +588,7 @@ impl Iapws95 {
         Ok(out)
     }
 
-    /// Pressure at (T [K], ρ [kg/m3]), Pa. Same checks as [`Iapws95::state_td`].
+    /// Pressure at (T (K), ρ (kg/m3)), Pa. Same checks as [`Iapws95::state_td`].
     pub fn pressure(&self, t: f64, rho: f64) -> Result<f64> {
         check_td(t, rho)?;
         Ok(p_and_dp(t, rho).0)

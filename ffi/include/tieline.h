@@ -214,6 +214,14 @@ typedef struct tl_model tl_model;
 typedef struct tl_result tl_result;
 
 /**
+ * A pure solid phase model of one species (e.g. ice Ih of water).
+ *
+ * Thread safety: a solid is immutable and reference counted, like `tl_model`: share it
+ * across any number of threads. A solid built from a fluid model keeps no reference to it.
+ */
+typedef struct tl_solid tl_solid;
+
+/**
  * Options of the stability test. Initialise with `tl_stability_options_default`.
  */
 typedef struct tl_stability_options {
@@ -308,6 +316,217 @@ typedef struct tl_batch_output {
  * Which cubic equation of state (`TL_CUBIC_*`).
  */
 typedef uint32_t tl_cubic_kind;
+
+/**
+ * A phase of a pure substance (`TL_PURE_*`): the fluid's liquid or vapour, or solid `k` of
+ * the solids array as `TL_PURE_SOLID + k`.
+ */
+typedef uint32_t tl_pure_phase;
+
+/**
+ * One phase of a pure substance at (T, p): molar quantities in the library reference state.
+ */
+typedef struct tl_pure_phase_point {
+  /**
+   * Which phase (`TL_PURE_*`).
+   */
+  tl_pure_phase phase;
+  /**
+   * Temperature, K.
+   */
+  double temperature;
+  /**
+   * Pressure, Pa.
+   */
+  double pressure;
+  /**
+   * Molar Gibbs energy, J/mol.
+   */
+  double gibbs;
+  /**
+   * Molar enthalpy, J/mol.
+   */
+  double enthalpy;
+  /**
+   * Molar entropy, J/(mol K).
+   */
+  double entropy;
+  /**
+   * Molar volume, m3/mol.
+   */
+  double molar_volume;
+} tl_pure_phase_point;
+
+/**
+ * A point of a two-phase boundary of a pure substance.
+ */
+typedef struct tl_coexistence {
+  /**
+   * Temperature, K.
+   */
+  double temperature;
+  /**
+   * Pressure, Pa.
+   */
+  double pressure;
+  /**
+   * The first phase's state.
+   */
+  struct tl_pure_phase_point a;
+  /**
+   * The second phase's state (the one stable at higher temperature for melting, boiling
+   * and sublimation).
+   */
+  struct tl_pure_phase_point b;
+  /**
+   * Enthalpy of transition h_b − h_a, J/mol.
+   */
+  double delta_h;
+  /**
+   * Entropy of transition s_b − s_a, J/(mol K).
+   */
+  double delta_s;
+  /**
+   * Volume change v_b − v_a, m3/mol.
+   */
+  double delta_v;
+  /**
+   * Clapeyron slope dp/dT = Δs/Δv of the boundary, Pa/K.
+   */
+  double clapeyron_slope;
+  /**
+   * Newton iterations used.
+   */
+  size_t iterations;
+} tl_coexistence;
+
+/**
+ * A solid–liquid–vapour triple point of a pure substance.
+ */
+typedef struct tl_triple_point {
+  /**
+   * Temperature, K.
+   */
+  double temperature;
+  /**
+   * Pressure, Pa.
+   */
+  double pressure;
+  /**
+   * The solid's state.
+   */
+  struct tl_pure_phase_point solid;
+  /**
+   * The liquid's state.
+   */
+  struct tl_pure_phase_point liquid;
+  /**
+   * The vapour's state.
+   */
+  struct tl_pure_phase_point vapor;
+  /**
+   * max |g_i − g_j|/(RT) at the solution (dimensionless).
+   */
+  double residual;
+  /**
+   * Outer iterations.
+   */
+  size_t iterations;
+} tl_triple_point;
+
+/**
+ * A crossing of two Gibbs-energy curves, refined by the coexistence solve.
+ */
+typedef struct tl_gibbs_crossing {
+  /**
+   * The coexistence point.
+   */
+  struct tl_coexistence point;
+  /**
+   * Molar Gibbs energy at the crossing, J/mol.
+   */
+  double gibbs;
+  /**
+   * True if no other phase lies lower there (a phase transition); false for a metastable
+   * crossing.
+   */
+  bool stable;
+} tl_gibbs_crossing;
+
+/**
+ * Summary of `tl_flash_with_solids`.
+ */
+typedef struct tl_solid_flash_summary {
+  /**
+   * Amount remaining fluid, mol (0 when everything froze).
+   */
+  double fluid_amount;
+  /**
+   * Number of solids present.
+   */
+  size_t num_solids_present;
+  /**
+   * Active-set iterations.
+   */
+  size_t active_set_iterations;
+  /**
+   * Inner (false-position) iterations.
+   */
+  size_t inner_iterations;
+  /**
+   * Fluid flashes performed.
+   */
+  size_t fluid_flashes;
+  /**
+   * max |ln f_fluid − ln f_solid| over present solids (dimensionless).
+   */
+  double residual;
+  /**
+   * Least margin over the absent evaluated solids (1e300 if none).
+   */
+  double min_absent_margin;
+} tl_solid_flash_summary;
+
+/**
+ * A candidate solid in the result of `tl_flash_with_solids`.
+ */
+typedef struct tl_solid_phase {
+  /**
+   * Fluid component index of the solid's species.
+   */
+  size_t component;
+  /**
+   * Whether the solid is present.
+   */
+  bool present;
+  /**
+   * Whether the solid model could be evaluated at (T, p); a solid outside its range is not
+   * considered, and its fugacities and margin are zero.
+   */
+  bool evaluated;
+  /**
+   * Amount of the solid, mol (0 when absent).
+   */
+  double amount;
+  /**
+   * Amount over the total feed amount (0 when absent).
+   */
+  double fraction;
+  /**
+   * ln of the solid's fugacity, ln(f/Pa).
+   */
+  double ln_fugacity_solid;
+  /**
+   * ln of the species' fugacity in the fluid, ln(f/Pa) (−1e300 when the species is absent
+   * from the fluid).
+   */
+  double ln_fugacity_fluid;
+  /**
+   * Stability margin ln f_solid − ln f_fluid (dimensionless): ≥ 0 for a stable absent
+   * solid, ≈ 0 for a present one.
+   */
+  double margin;
+} tl_solid_phase;
 
 /**
  * Scalar data of one phase of a flash result.
@@ -667,6 +886,21 @@ typedef uint32_t tl_root_choice;
 #define TL_CUBIC_SOAVE_REDLICH_KWONG 3
 
 /**
+ * The fluid model's liquid (dense) root.
+ */
+#define TL_PURE_LIQUID 1
+
+/**
+ * The fluid model's vapour (light) root.
+ */
+#define TL_PURE_VAPOR 2
+
+/**
+ * The first solid of the array; solid `k` is `TL_PURE_SOLID + k`.
+ */
+#define TL_PURE_SOLID 16
+
+/**
  * The root of least Gibbs energy (the stable one when there are two).
  */
 #define TL_ROOT_STABLE 0
@@ -888,6 +1122,154 @@ tl_status tl_model_molar_mass(const struct tl_model *model, size_t index, double
  * `tl_model_component_name`.
  */
 tl_status tl_model_to_json(const struct tl_model *model, char *buf, size_t len, size_t *needed);
+
+/**
+ * Ice Ih by the IAPWS-06 Gibbs function (IAPWS R10-06(2009)), species "water"; evaluated
+ * for 0 < T ≤ 273.16 K and p ≤ 210 MPa. Its reference state is consistent
+ * with the IAPWS-95 water model (`{"model": "iapws95"}`). On success `*out` receives a new
+ * solid, to be released with `tl_solid_free`.
+ */
+tl_status tl_solid_ice_ih_new(const struct tl_solid **out);
+
+/**
+ * Solid carbon dioxide ("dry ice") from its fusion data (triple point 216.592 K, enthalpy
+ * of fusion 9.0 kJ/mol, constant molar volume and heat capacity; 150–260 K, up to 50 MPa),
+ * anchored to component `component` of `fluid`: at 216.592 K and the fluid model's vapour
+ * pressure there, the solid's molar Gibbs energy equals the fluid's, so the combined
+ * triple point lies exactly there. The component must be named "carbon dioxide".
+ *
+ * Errors: `TL_STATUS_INVALID_INPUT` (another species, index out of range),
+ * `TL_STATUS_NO_SOLUTION` (the fluid has no saturation at 216.592 K).
+ */
+tl_status tl_solid_carbon_dioxide_new(const struct tl_model *fluid,
+                                      size_t component,
+                                      const struct tl_solid **out);
+
+/**
+ * Releases a solid handle. NULL is accepted and ignored. Must not be called twice.
+ */
+void tl_solid_free(const struct tl_solid *solid);
+
+/**
+ * The stable phase of component `component` of `fluid`, taken pure, together with the
+ * `num_solids` solids in `solids` (may be NULL when `num_solids` is 0; every solid must be of
+ * that component's species), at `temperature` (K) and `pressure` (Pa): the phase of least
+ * molar Gibbs energy. `*out` receives it (`out->phase` says which, `out->gibbs` in J/mol).
+ *
+ * Errors: `TL_STATUS_INVALID_INPUT` (non-finite or non-positive T or p, a solid of another
+ * species), `TL_STATUS_NO_SOLUTION` (no phase of the set can be evaluated there).
+ */
+tl_status tl_pure_stable_phase(const struct tl_model *fluid,
+                               size_t component,
+                               const struct tl_solid *const *solids,
+                               size_t num_solids,
+                               double temperature,
+                               double pressure,
+                               struct tl_pure_phase_point *out);
+
+/**
+ * The temperature (K) at which phases `phase_a` and `phase_b` (`TL_PURE_*`) coexist at
+ * `pressure` (Pa): the melting point (solid, liquid), the boiling point (liquid, vapour) or
+ * the sublimation point (solid, vapour). `t_guess` (K; may be NULL) starts the Newton
+ * iteration; by default it starts from the solid's triple-point estimate or the fluid's
+ * boiling point. Other arguments as `tl_pure_stable_phase`.
+ *
+ * Errors: `TL_STATUS_INVALID_INPUT` (an unknown phase code, the same phase twice),
+ * `TL_STATUS_INDEX_OUT_OF_RANGE` (a solid beyond `num_solids`), `TL_STATUS_NO_SOLUTION`,
+ * `TL_STATUS_NOT_CONVERGED`.
+ */
+tl_status tl_pure_coexistence_temperature(const struct tl_model *fluid,
+                                          size_t component,
+                                          const struct tl_solid *const *solids,
+                                          size_t num_solids,
+                                          tl_pure_phase phase_a,
+                                          tl_pure_phase phase_b,
+                                          double pressure,
+                                          const double *t_guess,
+                                          struct tl_coexistence *out);
+
+/**
+ * The pressure (Pa) at which phases `phase_a` and `phase_b` coexist at `temperature` (K):
+ * the vapour pressure (liquid, vapour), the sublimation pressure (solid, vapour) or the
+ * melting pressure (solid, liquid). `p_guess` (Pa; may be NULL) starts the Newton iteration.
+ * Arguments and errors as `tl_pure_coexistence_temperature`.
+ */
+tl_status tl_pure_coexistence_pressure(const struct tl_model *fluid,
+                                       size_t component,
+                                       const struct tl_solid *const *solids,
+                                       size_t num_solids,
+                                       tl_pure_phase phase_a,
+                                       tl_pure_phase phase_b,
+                                       double temperature,
+                                       const double *p_guess,
+                                       struct tl_coexistence *out);
+
+/**
+ * The triple point where solid `solid` (an index into `solids`), the liquid and the vapour
+ * coexist, from `t_guess` (K; may be NULL: the solid's triple-point estimate). Other
+ * arguments as `tl_pure_stable_phase`.
+ *
+ * Errors: `TL_STATUS_INDEX_OUT_OF_RANGE` (`solid` ≥ `num_solids`), `TL_STATUS_NO_SOLUTION`,
+ * `TL_STATUS_NOT_CONVERGED`.
+ */
+tl_status tl_pure_triple_point(const struct tl_model *fluid,
+                               size_t component,
+                               const struct tl_solid *const *solids,
+                               size_t num_solids,
+                               size_t solid,
+                               const double *t_guess,
+                               struct tl_triple_point *out);
+
+/**
+ * Molar Gibbs energies g(T) (J/mol) of every phase at `pressure` (Pa) on the grid
+ * `temperatures` (`num_temperatures` ≥ 2 values, K, strictly ascending).
+ *
+ * `gibbs` (`gibbs_len` ≥ (2 + `num_solids`) × `num_temperatures`) receives the curves
+ * row-major: the liquid's curve, the vapour's, then one per solid in the order given; NaN
+ * where the phase does not exist or is outside its model's range. `crossings` (may be NULL;
+ * else room for `crossings_len` entries) receives the crossings of the curves, and
+ * `*num_crossings` (may be NULL) their number; if `crossings` is too small, nothing but
+ * `*num_crossings` is written and `TL_STATUS_BUFFER_TOO_SMALL` is returned.
+ */
+tl_status tl_pure_gibbs_curves_isobaric(const struct tl_model *fluid,
+                                        size_t component,
+                                        const struct tl_solid *const *solids,
+                                        size_t num_solids,
+                                        double pressure,
+                                        const double *temperatures,
+                                        size_t num_temperatures,
+                                        double *gibbs,
+                                        size_t gibbs_len,
+                                        struct tl_gibbs_crossing *crossings,
+                                        size_t crossings_len,
+                                        size_t *num_crossings);
+
+/**
+ * PT flash of feed amounts `n` (`len` values, mol) at `temperature` (K) and `pressure` (Pa)
+ * over the fluid phases of `model` and the pure solids `solids` (`num_solids` handles, may be
+ * NULL when 0; each solid's species is found among the model's components by name).
+ * `options` (may be NULL) are those of the fluid flashes; the solid tolerance is 1e-9.
+ *
+ * Outputs, all written only on success: `result` (may be NULL) receives the flash of the
+ * fluid part (phase fractions relative to the fluid amount), or is emptied when no fluid
+ * remains; `summary` (required); `phases` (may be NULL; else `phases_len` ≥ `num_solids`)
+ * one entry per candidate solid, in the order given.
+ *
+ * Errors: `TL_STATUS_INVALID_INPUT` (T, p, amounts; a solid whose species is not a
+ * component), `TL_STATUS_BUSY` (the result in use), and those of `tl_flash`.
+ */
+tl_status tl_flash_with_solids(const struct tl_model *model,
+                               const struct tl_solid *const *solids,
+                               size_t num_solids,
+                               double temperature,
+                               double pressure,
+                               const double *n,
+                               size_t len,
+                               const struct tl_flash_options *options,
+                               struct tl_result *result,
+                               struct tl_solid_flash_summary *summary,
+                               struct tl_solid_phase *phases,
+                               size_t phases_len);
 
 /**
  * A new, empty result, to be released with `tl_result_free`.

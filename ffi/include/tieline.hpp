@@ -294,6 +294,108 @@ private:
     const tl_model* m_;
 };
 
+/// A pure solid phase model (tl_solid). Move-only; the C handle is freed on destruction.
+class Solid {
+public:
+    /// Ice Ih by IAPWS-06 (species "water").
+    static Solid ice_ih() {
+        const tl_solid* s = nullptr;
+        detail::check(tl_solid_ice_ih_new(&s));
+        return Solid(s);
+    }
+    /// Dry ice from fusion data, anchored to component i ("carbon dioxide") of a fluid model.
+    static Solid carbon_dioxide(const Model& fluid, size_t i) {
+        const tl_solid* s = nullptr;
+        detail::check(tl_solid_carbon_dioxide_new(fluid.get(), i, &s));
+        return Solid(s);
+    }
+    Solid(const Solid&) = delete;
+    Solid& operator=(const Solid&) = delete;
+    Solid(Solid&& o) noexcept : s_(o.s_) { o.s_ = nullptr; }
+    Solid& operator=(Solid&& o) noexcept {
+        std::swap(s_, o.s_);
+        return *this;
+    }
+    ~Solid() { tl_solid_free(s_); }
+    const tl_solid* get() const noexcept { return s_; }
+
+private:
+    explicit Solid(const tl_solid* s) noexcept : s_(s) {}
+    const tl_solid* s_ = nullptr;
+};
+
+/// Gibbs-energy curves: g (J/mol) per phase (liquid, vapour, solids) on the grid, NaN where a
+/// phase does not exist; and the crossings.
+struct GibbsCurves {
+    size_t points = 0;
+    std::vector<double> gibbs;
+    std::vector<tl_gibbs_crossing> crossings;
+    /// g of phase row k (0 liquid, 1 vapour, 2 + j solid j) at grid point i.
+    double g(size_t k, size_t i) const { return gibbs[k * points + i]; }
+};
+
+/// The outcome of a PT flash with solids: the summary, one entry per candidate solid, and the
+/// fluid part in a Result.
+struct SolidFlash {
+    tl_solid_flash_summary summary;
+    std::vector<tl_solid_phase> solids;
+};
+
+/// A pure substance: component `component` of a fluid model, taken pure, with solid phases
+/// of the same species. Phases are TL_PURE_LIQUID, TL_PURE_VAPOR, TL_PURE_SOLID + k.
+class PureSubstance {
+public:
+    PureSubstance(const Model& fluid, size_t component, std::vector<const Solid*> solids)
+        : fluid_(fluid), component_(component) {
+        for (const Solid* s : solids) s_.push_back(s ? s->get() : nullptr);
+    }
+    tl_pure_phase_point stable_phase(double t, double p) const {
+        tl_pure_phase_point out;
+        detail::check(tl_pure_stable_phase(fluid_.get(), component_, s_.data(), s_.size(), t, p, &out));
+        return out;
+    }
+    /// Coexistence temperature (K) of phases a and b at p (Pa): melting, boiling, sublimation.
+    tl_coexistence coexistence_temperature(tl_pure_phase a, tl_pure_phase b, double p,
+                                           const double* t_guess = nullptr) const {
+        tl_coexistence out;
+        detail::check(tl_pure_coexistence_temperature(fluid_.get(), component_, s_.data(), s_.size(), a, b, p,
+                                                      t_guess, &out));
+        return out;
+    }
+    /// Coexistence pressure (Pa) of phases a and b at t (K).
+    tl_coexistence coexistence_pressure(tl_pure_phase a, tl_pure_phase b, double t,
+                                        const double* p_guess = nullptr) const {
+        tl_coexistence out;
+        detail::check(
+            tl_pure_coexistence_pressure(fluid_.get(), component_, s_.data(), s_.size(), a, b, t, p_guess, &out));
+        return out;
+    }
+    tl_triple_point triple_point(size_t solid = 0, const double* t_guess = nullptr) const {
+        tl_triple_point out;
+        detail::check(tl_pure_triple_point(fluid_.get(), component_, s_.data(), s_.size(), solid, t_guess, &out));
+        return out;
+    }
+    /// g(T) of every phase at p (Pa) on the temperature grid ts (K, ascending).
+    GibbsCurves gibbs_curves_isobaric(double p, Span ts) const {
+        GibbsCurves r;
+        r.points = ts.size();
+        r.gibbs.assign((2 + s_.size()) * ts.size(), 0.0);
+        size_t n = 0;
+        detail::check(tl_pure_gibbs_curves_isobaric(fluid_.get(), component_, s_.data(), s_.size(), p, ts.data(),
+                                                    ts.size(), r.gibbs.data(), r.gibbs.size(), nullptr, 0, &n));
+        r.crossings.resize(n);
+        detail::check(tl_pure_gibbs_curves_isobaric(fluid_.get(), component_, s_.data(), s_.size(), p, ts.data(),
+                                                    ts.size(), r.gibbs.data(), r.gibbs.size(), r.crossings.data(),
+                                                    r.crossings.size(), &n));
+        return r;
+    }
+
+private:
+    Model fluid_;
+    size_t component_;
+    std::vector<const tl_solid*> s_;
+};
+
 /// A flash or stability result. Reuse one Result across calls to avoid allocation.
 class Result {
 public:
@@ -435,6 +537,19 @@ inline Result Model::flash(double t, double p, Span n, const tl_flash_options* o
 inline Result Model::stability(double t, double p, Span n, const tl_stability_options* opts) const {
     Result r;
     detail::check(tl_stability(m_, t, p, n.data(), n.size(), opts, r.get()));
+    return r;
+}
+
+/// PT flash of amounts n at (t, p) over the fluid phases of `fluid` and the given solids; the
+/// fluid part goes into `fluid_part` (emptied when everything froze).
+inline SolidFlash flash_with_solids(const Model& fluid, const std::vector<const Solid*>& solids, double t, double p,
+                                    Span n, Result& fluid_part, const tl_flash_options* opts = nullptr) {
+    std::vector<const tl_solid*> s;
+    for (const Solid* x : solids) s.push_back(x ? x->get() : nullptr);
+    SolidFlash r;
+    r.solids.resize(s.size());
+    detail::check(tl_flash_with_solids(fluid.get(), s.data(), s.size(), t, p, n.data(), n.size(), opts,
+                                       fluid_part.get(), &r.summary, r.solids.data(), r.solids.size()));
     return r;
 }
 

@@ -10,7 +10,8 @@
 //!   handle, `_free` releases it (NULL is accepted; never call it twice).
 //! - Handles are opaque: `tl_model` (immutable, shared by any number of threads),
 //!   `tl_context` (a reusable flash solver for one model, one thread at a time) and
-//!   `tl_result` (filled by flashes and stability tests, reused between calls).
+//!   `tl_result` (filled by flashes and stability tests, reused between calls); `tl_solid`
+//!   (a pure solid phase model, immutable and shared like `tl_model`).
 //! - Every function that can fail returns a [`tl_status`]; `TL_STATUS_OK` is 0 and the
 //!   numbers never change. Out-parameters are written only on success (exception: the
 //!   `needed` size of the text functions, written also on `TL_STATUS_BUFFER_TOO_SMALL`).
@@ -35,12 +36,14 @@
 mod boundary;
 pub mod flash;
 pub mod model;
+pub mod pure;
 pub mod result;
 pub mod saturation;
 
 pub use boundary::tl_status;
 pub use flash::*;
 pub use model::*;
+pub use pure::*;
 pub use result::*;
 pub use saturation::*;
 

@@ -195,6 +195,114 @@ int main() {
     CHECK(tl_flash_batch(m, T2, P, 1, z, 2, nullptr, 1, &one_slot) == TL_STATUS_OK && st[0] == TL_STATUS_BUFFER_TOO_SMALL,
           "a two-phase point with one phase slot");
 
+    // Solids and pure-substance calls.
+    {
+        const tl_model* water = nullptr;
+        tl_model_from_json("{\"model\": \"iapws95\"}", &water);
+        CHECK(water != nullptr, "water model");
+        const tl_solid* ice = nullptr;
+        tl_solid_ice_ih_new(&ice);
+        CHECK(ice != nullptr, "ice");
+        expect(tl_solid_ice_ih_new(nullptr), TL_STATUS_NULL_POINTER, "out", "NULL solid out");
+        const tl_solid* sout = reinterpret_cast<const tl_solid*>(0x10);
+        expect(tl_solid_carbon_dioxide_new(water, 0, &sout), TL_STATUS_INVALID_INPUT, "carbon dioxide",
+               "dry ice anchored to water");
+        expect(tl_solid_carbon_dioxide_new(nullptr, 0, &sout), TL_STATUS_NULL_POINTER, "model", "dry ice, NULL fluid");
+        expect(tl_solid_carbon_dioxide_new(water, 3, &sout), TL_STATUS_INDEX_OUT_OF_RANGE, "component index 3",
+               "dry ice, component out of range");
+        expect(tl_solid_carbon_dioxide_new(reinterpret_cast<const tl_model*>(ice), 0, &sout), TL_STATUS_INVALID_HANDLE,
+               "model handle", "a solid passed as a model");
+        CHECK(sout == reinterpret_cast<const tl_solid*>(0x10), "no solid written on error");
+
+        const tl_solid* solids[] = {ice};
+        tl_coexistence c{};
+        c.temperature = -1;
+        expect(tl_pure_coexistence_temperature(water, 0, solids, 1, TL_PURE_SOLID, TL_PURE_LIQUID, nan, nullptr, &c),
+               TL_STATUS_INVALID_INPUT, "pressure", "melting at NaN pressure");
+        expect(tl_pure_coexistence_temperature(water, 0, solids, 1, 7, TL_PURE_LIQUID, 101325.0, nullptr, &c),
+               TL_STATUS_INVALID_INPUT, "phase_a", "unknown phase code");
+        expect(tl_pure_coexistence_temperature(water, 0, solids, 1, TL_PURE_SOLID + 1, TL_PURE_LIQUID, 101325.0,
+                                               nullptr, &c),
+               TL_STATUS_INDEX_OUT_OF_RANGE, "1 solids", "solid beyond the array");
+        expect(tl_pure_coexistence_temperature(water, 0, solids, 1, TL_PURE_LIQUID, TL_PURE_LIQUID, 101325.0, nullptr,
+                                               &c),
+               TL_STATUS_INVALID_INPUT, "two different phases", "the same phase twice");
+        expect(tl_pure_coexistence_temperature(water, 0, solids, 1, TL_PURE_SOLID, TL_PURE_LIQUID, 101325.0, nullptr,
+                                               nullptr),
+               TL_STATUS_NULL_POINTER, "out", "NULL coexistence out");
+        expect(tl_pure_coexistence_temperature(water, 0, nullptr, 1, TL_PURE_SOLID, TL_PURE_LIQUID, 101325.0, nullptr,
+                                               &c),
+               TL_STATUS_NULL_POINTER, "solids", "NULL solids with a count");
+        const tl_solid* null_solid[] = {nullptr};
+        expect(tl_pure_coexistence_temperature(water, 0, null_solid, 1, TL_PURE_SOLID, TL_PURE_LIQUID, 101325.0,
+                                               nullptr, &c),
+               TL_STATUS_NULL_POINTER, "solids[0]", "a NULL solid in the array");
+        const tl_solid* wrong[] = {reinterpret_cast<const tl_solid*>(water)};
+        expect(tl_pure_coexistence_temperature(water, 0, wrong, 1, TL_PURE_SOLID, TL_PURE_LIQUID, 101325.0, nullptr, &c),
+               TL_STATUS_INVALID_HANDLE, "solids[0]", "a model passed as a solid");
+        expect(tl_pure_coexistence_temperature(reinterpret_cast<const tl_model*>(ice), 0, solids, 1, TL_PURE_SOLID,
+                                               TL_PURE_LIQUID, 101325.0, nullptr, &c),
+               TL_STATUS_INVALID_HANDLE, "model handle", "a solid passed as the fluid");
+        double bad_guess = nan;
+        expect(tl_pure_coexistence_temperature(water, 0, solids, 1, TL_PURE_SOLID, TL_PURE_LIQUID, 101325.0, &bad_guess,
+                                               &c),
+               TL_STATUS_INVALID_INPUT, "temperature", "NaN temperature guess");
+        expect(tl_pure_coexistence_pressure(water, 0, solids, 1, TL_PURE_LIQUID, TL_PURE_VAPOR, -5.0, nullptr, &c),
+               TL_STATUS_INVALID_INPUT, "temperature", "negative temperature");
+        expect(tl_pure_coexistence_pressure(water, 0, solids, 1, TL_PURE_LIQUID, TL_PURE_VAPOR, 700.0, nullptr, &c),
+               TL_STATUS_NO_SOLUTION, "", "boiling above the critical temperature");
+        CHECK(c.temperature == -1, "no coexistence written on error");
+        tl_pure_phase_point pp{};
+        pp.gibbs = 42;
+        expect(tl_pure_stable_phase(water, 0, solids, 1, inf, 101325.0, &pp), TL_STATUS_INVALID_INPUT, "temperature",
+               "stable phase at infinite T");
+        expect(tl_pure_stable_phase(water, 1, solids, 1, 300.0, 101325.0, &pp), TL_STATUS_INDEX_OUT_OF_RANGE,
+               "component index 1", "stable phase of component 1 of water");
+        CHECK(pp.gibbs == 42, "no phase point written on error");
+        tl_triple_point tp{};
+        expect(tl_pure_triple_point(water, 0, solids, 1, 1, nullptr, &tp), TL_STATUS_INDEX_OUT_OF_RANGE, "solid index 1",
+               "triple point of a missing solid");
+        expect(tl_pure_triple_point(water, 0, nullptr, 0, 0, nullptr, &tp), TL_STATUS_INDEX_OUT_OF_RANGE,
+               "0 solids", "triple point without solids");
+        double ts[3] = {263.15, 273.15, 283.15}, g[9], g_small[8];
+        for (double& x : g) x = -7;
+        expect(tl_pure_gibbs_curves_isobaric(water, 0, solids, 1, 101325.0, ts, 3, g_small, 8, nullptr, 0, nullptr),
+               TL_STATUS_BUFFER_TOO_SMALL, "9 are required", "Gibbs curves into a short array");
+        expect(tl_pure_gibbs_curves_isobaric(water, 0, solids, 1, 101325.0, nullptr, 3, g, 9, nullptr, 0, nullptr),
+               TL_STATUS_NULL_POINTER, "temperatures", "NULL grid");
+        double desc[3] = {283.15, 273.15, 263.15};
+        expect(tl_pure_gibbs_curves_isobaric(water, 0, solids, 1, 101325.0, desc, 3, g, 9, nullptr, 0, nullptr),
+               TL_STATUS_INVALID_INPUT, "ascending", "descending grid");
+        tl_gibbs_crossing xs[1];
+        size_t nx = 99;
+        expect(tl_pure_gibbs_curves_isobaric(water, 0, solids, 1, 101325.0, ts, 3, g, 9, xs, 0, &nx),
+               TL_STATUS_BUFFER_TOO_SMALL, "crossings", "no room for the crossing");
+        CHECK(nx == 1, "the number of crossings is reported with a short crossings array");
+        CHECK(g[0] == -7, "no curves written on a short crossings array");
+
+        // The flash with solids.
+        tl_solid_flash_summary sum{};
+        sum.fluid_amount = -3;
+        tl_solid_phase sp[1];
+        double one[1] = {1.0};
+        expect(tl_flash_with_solids(water, solids, 1, 260.0, 101325.0, one, 1, nullptr, r, nullptr, sp, 1),
+               TL_STATUS_NULL_POINTER, "summary", "NULL summary");
+        expect(tl_flash_with_solids(water, solids, 1, 260.0, 101325.0, one, 1, nullptr, r, &sum, sp, 0),
+               TL_STATUS_BUFFER_TOO_SMALL, "phases", "no room for the solid");
+        expect(tl_flash_with_solids(water, solids, 1, nan, 101325.0, one, 1, nullptr, r, &sum, sp, 1),
+               TL_STATUS_INVALID_INPUT, "temperature", "flash with solids at NaN T");
+        expect(tl_flash_with_solids(water, solids, 1, 260.0, 101325.0, one, 2, nullptr, r, &sum, sp, 1),
+               TL_STATUS_INVALID_INPUT, "", "amounts of the wrong length");
+        expect(tl_flash_with_solids(m, solids, 1, 260.0, 101325.0, z, 2, nullptr, r, &sum, sp, 1),
+               TL_STATUS_INVALID_INPUT, "water", "ice with a fluid that has no water");
+        expect(tl_flash_with_solids(water, wrong, 1, 260.0, 101325.0, one, 1, nullptr, r, &sum, sp, 1),
+               TL_STATUS_INVALID_HANDLE, "solids[0]", "flash with a model passed as a solid");
+        CHECK(sum.fluid_amount == -3, "no summary written on error");
+
+        tl_solid_free(ice);
+        tl_model_free(water);
+    }
+
     // Version and status names never fail.
     CHECK(std::string(tl_status_name(TL_STATUS_PANIC)) == "TL_STATUS_PANIC", "status name");
 

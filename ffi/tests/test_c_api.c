@@ -195,6 +195,42 @@ int main(void) {
   last_error(msg, sizeof msg);
   CHECK(strstr(msg, "component 1") != NULL, "reading the message does not change it");
 
+  /* Pure water: IAPWS-95 (built from its JSON description) with IAPWS-06 ice Ih. */
+  {
+    const tl_model *water = NULL;
+    const tl_solid *ice = NULL;
+    OK(tl_model_from_json("{\"model\": \"iapws95\"}", &water));
+    OK(tl_solid_ice_ih_new(&ice));
+    size_t wn = 0;
+    OK(tl_model_num_components(water, &wn));
+    CHECK(wn == 1, "IAPWS-95 water has one component");
+    const tl_solid *solids[] = {ice};
+    /* IAPWS R10-06(2009): ice Ih and IAPWS-95 liquid coexist at 273.152519 K at 101325 Pa. */
+    tl_coexistence melt;
+    OK(tl_pure_coexistence_temperature(water, 0, solids, 1, TL_PURE_SOLID, TL_PURE_LIQUID, 101325.0, NULL, &melt));
+    CHECK(fabs(melt.temperature - 273.152519) < 1e-6, "normal melting point 273.152519 K (R10-06) to 1e-6 K");
+    CHECK(melt.a.phase == TL_PURE_SOLID && melt.b.phase == TL_PURE_LIQUID, "melting: the phases as asked");
+    CHECK(melt.delta_v < 0 && melt.clapeyron_slope < 0, "ice is less dense than water: dp/dT < 0 on melting");
+    /* IAPWS R6-95(2018) Table 8: saturation pressure at 450 K is 0.932203564 MPa. */
+    tl_coexistence sat;
+    OK(tl_pure_coexistence_pressure(water, 0, solids, 1, TL_PURE_LIQUID, TL_PURE_VAPOR, 450.0, NULL, &sat));
+    CHECK(fabs(sat.pressure - 0.932203564e6) / 0.932203564e6 < 1e-8, "p_sat(450 K) = 0.932203564 MPa (R6-95 Table 8)");
+    CHECK(fabs(sat.a.gibbs - sat.b.gibbs) <= 1e-9 * fabs(sat.a.gibbs), "equal molar g of liquid and vapour");
+    /* At 101325 Pa, 263.15 K lies below the R10-06 melting point (ice) and 283.15 K above it (liquid). */
+    tl_pure_phase_point st;
+    OK(tl_pure_stable_phase(water, 0, solids, 1, 263.15, 101325.0, &st));
+    CHECK(st.phase == TL_PURE_SOLID, "ice is stable at 263.15 K, 101325 Pa");
+    OK(tl_pure_stable_phase(water, 0, solids, 1, 283.15, 101325.0, &st));
+    CHECK(st.phase == TL_PURE_LIQUID, "liquid is stable at 283.15 K, 101325 Pa");
+    /* Triple point: 273.16 K by definition (ITS-90), 611.655 Pa (IAPWS-95 vapour pressure there). */
+    tl_triple_point tp;
+    OK(tl_pure_triple_point(water, 0, solids, 1, 0, NULL, &tp));
+    CHECK(fabs(tp.temperature - 273.16) < 1e-5 && fabs(tp.pressure - 611.655) < 5e-4, "triple point 273.16 K, 611.655 Pa");
+    tl_model_free(water);
+    tl_solid_free(ice);
+    tl_solid_free(NULL);
+  }
+
   tl_result_free(res);
   tl_result_free(res2);
   tl_context_free(ctx);

@@ -223,6 +223,122 @@ int main(int argc, char** argv) {
         }
     }
 
+    // Pure water (IAPWS-95 with IAPWS-06 ice Ih): the file's expected values with its
+    // tolerances, and bit-for-bit equality with the Rust calls.
+    {
+        Model water = Model::from_json("{\"model\": \"iapws95\"}");
+        tieline::Solid ice = tieline::Solid::ice_ih();
+        tieline::PureSubstance set(water, 0, {&ice});
+        auto same_point = [](const tl_pure_phase_point& a, const json::Value& r, const std::string& w) {
+            CHECK_SAME(a.gibbs, r["gibbs"].number(), w + " g");
+            CHECK_SAME(a.enthalpy, r["enthalpy"].number(), w + " h");
+            CHECK_SAME(a.entropy, r["entropy"].number(), w + " s");
+            CHECK_SAME(a.molar_volume, r["molar_volume"].number(), w + " v");
+        };
+        auto same_coex = [&](const tl_coexistence& c, const json::Value& r, const std::string& w) {
+            CHECK(status_of(r) == TL_STATUS_OK, w + ": Rust status");
+            CHECK_SAME(c.temperature, r["temperature"].number(), w + " T");
+            CHECK_SAME(c.pressure, r["pressure"].number(), w + " p");
+            same_point(c.a, r["a"], w + " a");
+            same_point(c.b, r["b"], w + " b");
+            CHECK_SAME(c.delta_h, r["delta_h"].number(), w + " dh");
+            CHECK_SAME(c.clapeyron_slope, r["clapeyron_slope"].number(), w + " dp/dT");
+            CHECK(c.iterations == size_t(r["iterations"].number()), w + " iterations");
+        };
+        size_t checked = 0;
+        for (size_t k = 0; k < cases["water"].size(); ++k) {
+            const auto& c = cases["water"][k];
+            const auto& rr = ref["water"][k]["result"];
+            const std::string id = c["id"].str, kind = c["kind"].str;
+            CHECK(ref["water"][k]["id"].str == id, id + ": reference in step");
+            if (kind == "saturation_t") {
+                tl_coexistence s = set.coexistence_pressure(TL_PURE_LIQUID, TL_PURE_VAPOR, c["temperature"].number());
+                double want = c["expected"]["pressure"].number();
+                CHECK(std::fabs(s.pressure - want) / want < c["rel_tolerance"].number(),
+                      id + ": p_sat " + t::num(s.pressure));
+                same_coex(s, rr, id);
+                ++checked;
+            } else if (kind == "melting_p") {
+                double p = c["pressure"].number();
+                tl_coexistence mt = set.coexistence_temperature(TL_PURE_SOLID, TL_PURE_LIQUID, p);
+                CHECK(std::fabs(mt.temperature - c["expected"]["temperature"].number()) < c["abs_tolerance"].number(),
+                      id + ": T_melt " + t::num(mt.temperature));
+                same_coex(mt, rr["melting"], id + " melting");
+                const std::pair<const char*, double> probes[] = {{"stable_263", 263.15}, {"stable_283", 283.15}};
+                for (const auto& [key, T] : probes) {
+                    tl_pure_phase_point st = set.stable_phase(T, p);
+                    CHECK(st.phase == uint32_t(rr[key]["phase"].number()), id + " " + key + " phase");
+                    CHECK_SAME(st.gibbs, rr[key]["gibbs"].number(), id + " " + key + " g");
+                }
+                const auto& rc = rr["curves"];
+                auto ts = rc["temperatures"].numbers();
+                tieline::GibbsCurves g = set.gibbs_curves_isobaric(p, ts);
+                for (size_t row = 0; row < 3; ++row)
+                    for (size_t i = 0; i < ts.size(); ++i) {
+                        const auto& v = rc["gibbs"][row][i];
+                        std::string w = id + " curve " + std::to_string(row) + " point " + std::to_string(i);
+                        if (v.type == json::Value::Null)
+                            CHECK(std::isnan(g.g(row, i)), w + ": NaN where the phase does not exist");
+                        else
+                            CHECK_SAME(g.g(row, i), v.number(), w);
+                    }
+                CHECK(g.crossings.size() == rc["crossings"].size(), id + ": crossings");
+                for (size_t i = 0; i < g.crossings.size() && i < rc["crossings"].size(); ++i) {
+                    CHECK_SAME(g.crossings[i].point.temperature, rc["crossings"][i]["temperature"].number(),
+                               id + " crossing T");
+                    CHECK_SAME(g.crossings[i].gibbs, rc["crossings"][i]["gibbs"].number(), id + " crossing g");
+                    CHECK(g.crossings[i].stable == rc["crossings"][i]["stable"].b, id + " crossing stable");
+                    // The stable crossing on this grid is the melting point (R10-06: 273.152519 K).
+                    CHECK(std::fabs(g.crossings[i].point.temperature - 273.152519) < 1e-6, id + ": crossing at T_melt");
+                }
+                ++checked;
+            } else if (kind == "triple_point") {
+                tl_triple_point tp = set.triple_point(0);
+                const auto& e = c["expected"];
+                CHECK(std::fabs(tp.temperature - e["temperature"].number()) < c["abs_tolerance"]["temperature"].number(),
+                      id + ": T " + t::num(tp.temperature));
+                CHECK(std::fabs(tp.pressure - e["pressure"].number()) < c["abs_tolerance"]["pressure"].number(),
+                      id + ": p " + t::num(tp.pressure));
+                CHECK_SAME(tp.temperature, rr["temperature"].number(), id + " T as Rust");
+                CHECK_SAME(tp.pressure, rr["pressure"].number(), id + " p as Rust");
+                CHECK_SAME(tp.residual, rr["residual"].number(), id + " residual as Rust");
+                CHECK(tp.iterations == size_t(rr["iterations"].number()), id + " iterations as Rust");
+                same_point(tp.solid, rr["solid"], id + " solid");
+                ++checked;
+            }
+        }
+        CHECK(checked >= 5, "water section: saturation, melting and triple-point cases present");
+    }
+
+    // CO2 freeze-out from methane through the C ABI, as the Rust flash with solids.
+    {
+        const auto& sf = ref["solid_flash"];
+        const auto& rr = sf["result"];
+        std::vector<std::string> names;
+        for (const auto& n : sf["names"].arr) names.push_back(n.str);
+        Model m = Model::from_names(names);
+        tieline::Solid dry = tieline::Solid::carbon_dioxide(m, 1);
+        Result fluid;
+        auto z = sf["feed"].numbers();
+        tieline::SolidFlash r =
+            tieline::flash_with_solids(m, {&dry}, sf["temperature"].number(), sf["pressure"].number(), z, fluid);
+        CHECK(status_of(rr) == TL_STATUS_OK, "solid flash: Rust status");
+        CHECK(r.solids.size() == 1 && r.solids[0].present && r.summary.num_solids_present == 1, "dry ice present");
+        CHECK_SAME(r.solids[0].amount, rr["solid_amount"].number(), "solid flash: amount as Rust");
+        CHECK_SAME(r.solids[0].margin, rr["margin"].number(), "solid flash: margin as Rust");
+        CHECK_SAME(r.solids[0].ln_fugacity_solid, rr["ln_fugacity_solid"].number(), "solid flash: ln f_s as Rust");
+        CHECK_SAME(r.solids[0].ln_fugacity_fluid, rr["ln_fugacity_fluid"].number(), "solid flash: ln f_fluid as Rust");
+        CHECK_SAME(r.summary.residual, rr["residual"].number(), "solid flash: residual as Rust");
+        CHECK(r.summary.fluid_flashes == size_t(rr["fluid_flashes"].number()), "solid flash: fluid flashes as Rust");
+        same_flash("solid flash: fluid part", fluid, rr["fluid"]);
+        // Conservation of CO2: the solid plus the CO2 left in the fluid equal the feed.
+        double fluid_co2 = 0;
+        for (size_t k = 0; k < fluid.num_phases(); ++k)
+            fluid_co2 += fluid.phase(k).amount * fluid.composition(k)[1];
+        CHECK(std::fabs(r.solids[0].amount + fluid_co2 - z[1]) < 1e-14, "solid flash: CO2 balance");
+        CHECK(std::fabs(r.solids[0].margin) < 1e-9, "solid flash: a present solid has zero margin (tolerance 1e-9)");
+    }
+
     // Batch sweep on one and two threads, as the Rust batch on the same thread counts.
     {
         const auto& b = ref["batch"];

@@ -106,5 +106,48 @@ int main(int argc, char** argv) {
     CHECK(t::same(b.phase_fraction[2 * 2 + 0], one.phase(0).fraction) || b.phase_fraction[4] > 0,
           "batch fractions filled");
 
+    // Solids and pure substances: RAII, exceptions with status, the flash with solids.
+    {
+        Model water = Model::from_json("{\"model\": \"iapws95\"}");
+        Solid ice = Solid::ice_ih();
+        Solid moved = std::move(ice);
+        CHECK(ice.get() == nullptr && moved.get() != nullptr, "a moved solid owns nothing");
+        PureSubstance set(water, 0, {&moved});
+        // IAPWS R10-06(2009): normal melting point 273.152519 K.
+        tl_coexistence mt = set.coexistence_temperature(TL_PURE_SOLID, TL_PURE_LIQUID, 101325.0);
+        CHECK(std::fabs(mt.temperature - 273.152519) < 1e-6, "wrapper: normal melting point");
+        // IAPWS R6-95(2018) Table 8: p_sat(450 K) = 0.932203564 MPa; from a guess of 1 MPa.
+        double guess = 1e6;
+        tl_coexistence sat = set.coexistence_pressure(TL_PURE_LIQUID, TL_PURE_VAPOR, 450.0, &guess);
+        CHECK(std::fabs(sat.pressure / 0.932203564e6 - 1) < 1e-8, "wrapper: p_sat(450 K)");
+        try {
+            set.coexistence_temperature(TL_PURE_SOLID + 3, TL_PURE_LIQUID, 101325.0);
+            CHECK(false, "an unknown solid throws");
+        } catch (const Error& e) {
+            CHECK(e.status() == TL_STATUS_INDEX_OUT_OF_RANGE, "status of an unknown solid");
+        }
+        // Pure CO2 at 101325 Pa and 180 K, below its normal sublimation temperature 194.686 K
+        // (Span & Wagner 1996): the feed is all dry ice and no fluid remains.
+        Model co2 = Model::from_names({"carbon dioxide"});
+        Solid dry = Solid::carbon_dioxide(co2, 0);
+        Result fluid = co2.flash(300.0, 101325.0, {1.0});
+        SolidFlash r = flash_with_solids(co2, {&dry}, 180.0, 101325.0, {2.0}, fluid);
+        CHECK(r.solids[0].present && std::fabs(r.solids[0].amount - 2.0) < 1e-15 && r.summary.fluid_amount == 0,
+              "pure CO2 at 180 K is solid");
+        tl_result_kind kind;
+        CHECK(tl_result_kind_of(fluid.get(), &kind) == TL_STATUS_OK && kind == TL_RESULT_KIND_EMPTY,
+              "the fluid result is emptied when nothing is fluid");
+        // At 300 K the dry-ice model (150-260 K) is not evaluated and the feed stays fluid.
+        r = flash_with_solids(co2, {&dry}, 300.0, 101325.0, {2.0}, fluid);
+        CHECK(!r.solids[0].present && !r.solids[0].evaluated && r.summary.fluid_amount == 2.0 &&
+                  fluid.num_phases() == 1,
+              "pure CO2 at 300 K is fluid");
+        // The sublimation temperature at 101325 Pa lies between 180 and 300 K (194.686 K,
+        // Span & Wagner 1996; the fusion-data solid on Peng-Robinson is checked to 0.5 K).
+        tl_coexistence sub = PureSubstance(co2, 0, {&dry}).coexistence_temperature(TL_PURE_SOLID, TL_PURE_VAPOR,
+                                                                                   101325.0);
+        CHECK(std::fabs(sub.temperature - 194.686) < 0.5, "CO2 sublimation at 101325 Pa: " + t::num(sub.temperature));
+    }
+
     return t::finish("test_wrapper");
 }

@@ -7,10 +7,15 @@
 
 use serde_json::{Value, json};
 use tieline::equilibrium::{
-    FlashContext, FlashOptions, FlashResult, SaturationOptions, StabilityOptions, bubble_pressure, bubble_temperature,
-    dew_pressure, dew_temperature, flash_batch, flash_pt, saturation_pressure, saturation_temperature, stability,
+    Coexistence, FlashContext, FlashOptions, FlashResult, PhasePoint, PurePhase, PurePhases, SaturationOptions,
+    SolidFlashOptions, SolidPhaseSpec, StabilityOptions, bubble_pressure, bubble_temperature, dew_pressure,
+    dew_temperature, flash_batch, flash_pt, flash_pt_with_solids, saturation_pressure, saturation_temperature,
+    stability,
 };
-use tieline::model::{FluidModel, Model, PhaseState, RootChoice, model_from_json};
+use tieline::model::{
+    CubicEos, CubicKind, FluidModel, FusionData, FusionSolid, IceIh, Model, PhaseState, RootChoice, SolidModel,
+    model_from_json,
+};
 use tieline::substance::DataBank;
 use tieline_ffi::tl_status;
 
@@ -62,6 +67,92 @@ fn properties(m: &Model, t: f64, p: f64, n: &[f64], root: RootChoice) -> Value {
             "joule_thomson": pr.joule_thomson, "ln_phi": pr.ln_phi,
         })
     })
+}
+
+fn point(p: &PhasePoint) -> Value {
+    json!({"gibbs": p.gibbs, "enthalpy": p.enthalpy, "entropy": p.entropy, "molar_volume": p.molar_volume})
+}
+
+fn coexistence(r: tieline::Result<Coexistence>) -> Value {
+    or_status(r, |c| {
+        json!({"status": 0, "temperature": c.temperature, "pressure": c.pressure, "a": point(&c.states.0),
+               "b": point(&c.states.1), "delta_h": c.delta_h, "clapeyron_slope": c.clapeyron_slope,
+               "iterations": c.iterations})
+    })
+}
+
+/// The pure-water calls of the vector test: IAPWS-95 with IAPWS-06 ice Ih, by case kind.
+fn water(c: &Value) -> Value {
+    if !matches!(c["kind"].as_str(), Some("saturation_t" | "melting_p" | "triple_point")) {
+        return json!({"id": c["id"], "kind": c["kind"], "result": null});
+    }
+    let m = model_from_json(&c["model"].to_string(), DataBank::embedded()).expect("water model");
+    let ice = IceIh::new();
+    let set = PurePhases::new(&m, 0, vec![&ice as &dyn SolidModel]).expect("water phases");
+    let num = |k: &str| c[k].as_f64().unwrap_or_else(|| panic!("{}: missing {k}", c["id"]));
+    let rec = match c["kind"].as_str() {
+        Some("saturation_t") => {
+            coexistence(set.coexistence_at_temperature(PurePhase::Liquid, PurePhase::Vapor, num("temperature"), None))
+        }
+        Some("melting_p") => {
+            let p = num("pressure");
+            let melt = coexistence(set.coexistence_at_pressure(PurePhase::Solid(0), PurePhase::Liquid, p, None));
+            let stable = |t: f64| {
+                or_status(set.stable_phase(t, p), |s| {
+                    let code = match s.stable.phase {
+                        PurePhase::Liquid => 1,
+                        PurePhase::Vapor => 2,
+                        PurePhase::Solid(k) => 16 + k as u32,
+                    };
+                    json!({"status": 0, "phase": code, "gibbs": s.stable.gibbs})
+                })
+            };
+            let ts: Vec<f64> = (0..9).map(|k| 263.15 + 5.0 * k as f64).collect();
+            let curves = or_status(set.gibbs_curves_isobaric(p, &ts), |g| {
+                let rows: Vec<Value> = g
+                    .curves
+                    .iter()
+                    .map(|(_, v)| json!(v.iter().map(|x| x.unwrap_or(f64::NAN)).collect::<Vec<_>>()))
+                    .collect();
+                let xs: Vec<Value> = g
+                    .crossings
+                    .iter()
+                    .map(|x| json!({"temperature": x.point.temperature, "gibbs": x.gibbs, "stable": x.stable}))
+                    .collect();
+                json!({"status": 0, "temperatures": ts, "gibbs": rows, "crossings": xs})
+            });
+            json!({"status": 0, "melting": melt, "stable_263": stable(263.15), "stable_283": stable(283.15),
+                   "curves": curves})
+        }
+        Some("triple_point") => or_status(set.triple_point(0, None), |t| {
+            json!({"status": 0, "temperature": t.temperature, "pressure": t.pressure, "residual": t.residual,
+                   "iterations": t.iterations, "solid": point(&t.phases[0])})
+        }),
+        _ => json!(null),
+    };
+    json!({"id": c["id"], "kind": c["kind"], "result": rec})
+}
+
+/// The freeze-out flash of the vector test: CO2 (2 %) from methane at 5e5 Pa and 160 K on
+/// Peng-Robinson with dry ice anchored to it.
+fn solid_flash() -> Value {
+    let comps = DataBank::embedded()
+        .get_many(&["methane", "carbon dioxide"])
+        .expect("components");
+    let m = Model::Cubic(CubicEos::new(CubicKind::PengRobinson, comps).expect("model"));
+    let dry = FusionSolid::anchored(&m, 1, FusionData::carbon_dioxide()).expect("dry ice");
+    let spec = SolidPhaseSpec::matching(&m, &dry).expect("spec");
+    let (t, p, z) = (160.0, 5e5, [0.98, 0.02]);
+    let r = flash_pt_with_solids(&m, &[spec], t, p, &z, &SolidFlashOptions::default());
+    let rec = or_status(r, |r| {
+        let mg = &r.margins[0];
+        json!({"status": 0, "solid_amount": r.solids.first().map_or(0.0, |s| s.amount),
+               "margin": mg.margin, "ln_fugacity_solid": mg.ln_fugacity_solid,
+               "ln_fugacity_fluid": mg.ln_fugacity_fluid, "residual": r.diagnostics.residual,
+               "fluid_flashes": r.diagnostics.fluid_flashes,
+               "fluid": r.fluid.as_ref().map(flash_record)})
+    });
+    json!({"names": ["methane", "carbon dioxide"], "temperature": t, "pressure": p, "feed": z, "result": rec})
 }
 
 fn main() {
@@ -193,6 +284,8 @@ fn main() {
         "about": "Rust results of the calls made by ffi/tests/test_vectors.cpp (written by tieline-ffi-reference)",
         "stability": stab, "flash": flash, "warm": warm, "bubble_dew": mixtures, "volumes": volumes,
         "saturation": saturation,
+        "water": cases["water"].as_array().expect("water cases").iter().map(water).collect::<Vec<_>>(),
+        "solid_flash": solid_flash(),
         "batch": {"case": c["id"], "temperatures": temps, "pressure": p0, "runs": batch},
     });
     std::fs::write(&args[2], serde_json::to_string_pretty(&out).expect("serialising"))

@@ -194,3 +194,33 @@ fn carbon_dioxide_with_dry_ice() {
     );
     let _ = pr.num_components();
 }
+
+/// Traces over widely spaced grids: the vapour-pressure curve at the three temperatures of
+/// IAPWS R6-95(2018) Table 8 (published-values §1d: 0.698451167e-3, 0.932203564 and
+/// 16.9082693 MPa), each point started from the previous one 175 K away, to 1e-8; and the
+/// boiling curve traced along pressure back through the same points to the same temperatures.
+#[test]
+fn traces_over_coarse_grids() {
+    let water = Iapws95::new();
+    let set = PurePhases::new(&water, 0, vec![]).unwrap();
+    let ts = [275.0, 450.0, 625.0];
+    let want = [0.698451167e3, 0.932203564e6, 0.169082693e8];
+    let line = set.trace_along_temperature(L, V, &ts, None).unwrap();
+    for (c, w) in line.iter().zip(want) {
+        assert!(
+            (c.pressure / w - 1.0).abs() < 1e-8,
+            "p_sat({}) = {}",
+            c.temperature,
+            c.pressure
+        );
+    }
+    let back = set.trace_along_pressure(L, V, &want, None).unwrap();
+    for (c, t) in back.iter().zip(ts) {
+        assert!(
+            (c.temperature - t).abs() < 1e-6,
+            "T_sat({}) = {}",
+            c.pressure,
+            c.temperature
+        );
+    }
+}

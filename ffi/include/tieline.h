@@ -318,6 +318,45 @@ typedef struct tl_batch_output {
 typedef uint32_t tl_cubic_kind;
 
 /**
+ * Fusion data of a pure solid, for `tl_solid_fusion_new` (SI units).
+ */
+typedef struct tl_fusion_data {
+  /**
+   * Triple-point temperature, K (> 0, strictly inside [`t_min`, `t_max`]).
+   */
+  double t_triple;
+  /**
+   * Published triple-point pressure, Pa (> 0; kept for reference: the solid's own triple
+   * point lies at the fluid model's vapour pressure at `t_triple`).
+   */
+  double p_triple;
+  /**
+   * Enthalpy of fusion at the triple point, J/mol (> 0).
+   */
+  double enthalpy_of_fusion;
+  /**
+   * Heat-capacity difference cp(liquid) − cp(solid) at the triple point, J/(mol K).
+   */
+  double delta_cp;
+  /**
+   * Molar volume of the solid, m3/mol (> 0; taken constant).
+   */
+  double solid_molar_volume;
+  /**
+   * Lowest temperature of evaluation, K (> 0).
+   */
+  double t_min;
+  /**
+   * Highest temperature of evaluation, K.
+   */
+  double t_max;
+  /**
+   * Highest pressure of evaluation, Pa (> 0).
+   */
+  double p_max;
+} tl_fusion_data;
+
+/**
  * A phase of a pure substance (`TL_PURE_*`): the fluid's liquid or vapour, or solid `k` of
  * the solids array as `TL_PURE_SOLID + k`.
  */
@@ -452,6 +491,11 @@ typedef struct tl_gibbs_crossing {
    */
   bool stable;
 } tl_gibbs_crossing;
+
+/**
+ * Which coordinate a boundary trace steps along.
+ */
+typedef uint32_t tl_trace_axis;
 
 /**
  * Summary of `tl_flash_with_solids`.
@@ -901,6 +945,16 @@ typedef uint32_t tl_root_choice;
 #define TL_PURE_SOLID 16
 
 /**
+ * Step along temperature: the coexistence pressure at each grid temperature (K).
+ */
+#define TL_TRACE_TEMPERATURE 1
+
+/**
+ * Step along pressure: the coexistence temperature at each grid pressure (Pa).
+ */
+#define TL_TRACE_PRESSURE 2
+
+/**
  * The root of least Gibbs energy (the stable one when there are two).
  */
 #define TL_ROOT_STABLE 0
@@ -1146,6 +1200,33 @@ tl_status tl_solid_carbon_dioxide_new(const struct tl_model *fluid,
                                       const struct tl_solid **out);
 
 /**
+ * A pure solid of component `component` of `fluid` from user fusion data `data`, anchored
+ * like `tl_solid_carbon_dioxide_new` (the solid's Gibbs energy equals the fluid's saturated
+ * liquid's at `t_triple`). Its species is the component's name. `source` (may be NULL) is a
+ * NUL-terminated UTF-8 note of where the numbers come from, kept with the solid.
+ *
+ * Errors: `TL_STATUS_INVALID_INPUT` (a value out of range, naming the field; a heat-capacity
+ * difference that leaves the solid cp ≤ 0), `TL_STATUS_INDEX_OUT_OF_RANGE` (component),
+ * `TL_STATUS_NO_SOLUTION` (the fluid has no saturation at `t_triple`).
+ */
+tl_status tl_solid_fusion_new(const struct tl_model *fluid,
+                              size_t component,
+                              const struct tl_fusion_data *data,
+                              const char *source,
+                              const struct tl_solid **out);
+
+/**
+ * A second handle to the same solid (shares the data; each handle is freed separately).
+ */
+tl_status tl_solid_clone(const struct tl_solid *solid, const struct tl_solid **out);
+
+/**
+ * The species name of a solid (e.g. "water"), with the buffer convention of
+ * `tl_model_component_name`.
+ */
+tl_status tl_solid_species(const struct tl_solid *solid, char *buf, size_t len, size_t *needed);
+
+/**
  * Releases a solid handle. NULL is accepted and ignored. Must not be called twice.
  */
 void tl_solid_free(const struct tl_solid *solid);
@@ -1245,6 +1326,66 @@ tl_status tl_pure_gibbs_curves_isobaric(const struct tl_model *fluid,
                                         size_t *num_crossings);
 
 /**
+ * Molar Gibbs energies g(p) (J/mol) of every phase at `temperature` (K) on the grid
+ * `pressures` (`num_pressures` ≥ 2 values, Pa, strictly ascending); the crossings are
+ * refined by the coexistence solve at that temperature (vapour pressure, sublimation or
+ * melting pressure). Output arrays and errors as `tl_pure_gibbs_curves_isobaric`.
+ */
+tl_status tl_pure_gibbs_curves_isothermal(const struct tl_model *fluid,
+                                          size_t component,
+                                          const struct tl_solid *const *solids,
+                                          size_t num_solids,
+                                          double temperature,
+                                          const double *pressures,
+                                          size_t num_pressures,
+                                          double *gibbs,
+                                          size_t gibbs_len,
+                                          struct tl_gibbs_crossing *crossings,
+                                          size_t crossings_len,
+                                          size_t *num_crossings);
+
+/**
+ * The state of one phase (`TL_PURE_*`) of the pure substance at `temperature` (K) and
+ * `pressure` (Pa). `*exists` receives whether the phase exists there (a fluid root of that
+ * kind, a solid inside its model's range); `*out` is written only when it does.
+ *
+ * Errors: `TL_STATUS_INVALID_INPUT` (T, p, phase code), `TL_STATUS_INDEX_OUT_OF_RANGE`.
+ */
+tl_status tl_pure_phase_state(const struct tl_model *fluid,
+                              size_t component,
+                              const struct tl_solid *const *solids,
+                              size_t num_solids,
+                              tl_pure_phase phase,
+                              double temperature,
+                              double pressure,
+                              struct tl_pure_phase_point *out,
+                              bool *exists);
+
+/**
+ * The boundary where `phase_a` and `phase_b` coexist, traced over `grid` (`num_points`
+ * values: temperatures in K for `TL_TRACE_TEMPERATURE`, pressures in Pa for
+ * `TL_TRACE_PRESSURE`), each point's Newton solve started from the previous point
+ * extrapolated with its Clapeyron slope, the first from `guess` (Pa or K; may be NULL).
+ * `out` (`out_len` ≥ `num_points`) receives one coexistence point per grid value, written
+ * only if every point succeeds.
+ *
+ * Errors: those of `tl_pure_coexistence_temperature`; a point that fails stops the trace,
+ * and the message names its index.
+ */
+tl_status tl_pure_trace(const struct tl_model *fluid,
+                        size_t component,
+                        const struct tl_solid *const *solids,
+                        size_t num_solids,
+                        tl_pure_phase phase_a,
+                        tl_pure_phase phase_b,
+                        tl_trace_axis axis,
+                        const double *grid,
+                        size_t num_points,
+                        const double *guess_value,
+                        struct tl_coexistence *out,
+                        size_t out_len);
+
+/**
  * PT flash of feed amounts `n` (`len` values, mol) at `temperature` (K) and `pressure` (Pa)
  * over the fluid phases of `model` and the pure solids `solids` (`num_solids` handles, may be
  * NULL when 0; each solid's species is found among the model's components by name).
@@ -1270,6 +1411,26 @@ tl_status tl_flash_with_solids(const struct tl_model *model,
                                struct tl_solid_flash_summary *summary,
                                struct tl_solid_phase *phases,
                                size_t phases_len);
+
+/**
+ * The frost point: the temperature (K) at which the pure solid `solid` first appears from a
+ * fluid of amounts `n` (`len` values, mol) of `model` at `pressure` (Pa), where the solid's
+ * fugacity equals its species' fugacity in the flashed fluid. The search brackets from
+ * `t_guess` (K) in steps of 2 % and refines by false position. `options` (may be NULL) are
+ * those of the fluid flashes. `*out` receives the temperature.
+ *
+ * Errors: `TL_STATUS_INVALID_INPUT` (p, T guess, amounts; the solid's species not a component
+ * of the model or absent from the feed), `TL_STATUS_NO_SOLUTION` (no sign change within 60
+ * steps of the guess), `TL_STATUS_NOT_CONVERGED`, and those of `tl_flash`.
+ */
+tl_status tl_frost_point_temperature(const struct tl_model *model,
+                                     const struct tl_solid *solid,
+                                     double pressure,
+                                     const double *n,
+                                     size_t len,
+                                     double t_guess,
+                                     const struct tl_flash_options *options,
+                                     double *out);
 
 /**
  * A new, empty result, to be released with `tl_result_free`.

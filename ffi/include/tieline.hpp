@@ -17,6 +17,7 @@
 #include <cstddef>
 #include <cstdint>
 #include <initializer_list>
+#include <optional>
 #include <stdexcept>
 #include <string>
 #include <utility>
@@ -309,6 +310,23 @@ public:
         detail::check(tl_solid_carbon_dioxide_new(fluid.get(), i, &s));
         return Solid(s);
     }
+    /// A solid of component i of a fluid model from user fusion data (species: that
+    /// component); `source` says where the numbers come from.
+    static Solid fusion(const Model& fluid, size_t i, const tl_fusion_data& data, const char* source = nullptr) {
+        const tl_solid* s = nullptr;
+        detail::check(tl_solid_fusion_new(fluid.get(), i, &data, source, &s));
+        return Solid(s);
+    }
+    /// A second handle to the same solid.
+    Solid clone() const {
+        const tl_solid* s = nullptr;
+        detail::check(tl_solid_clone(s_, &s));
+        return Solid(s);
+    }
+    /// The species name (e.g. "water").
+    std::string species() const {
+        return detail::text([&](char* b, size_t l, size_t* n) { return tl_solid_species(s_, b, l, n); });
+    }
     Solid(const Solid&) = delete;
     Solid& operator=(const Solid&) = delete;
     Solid(Solid&& o) noexcept : s_(o.s_) { o.s_ = nullptr; }
@@ -376,21 +394,44 @@ public:
         return out;
     }
     /// g(T) of every phase at p (Pa) on the temperature grid ts (K, ascending).
-    GibbsCurves gibbs_curves_isobaric(double p, Span ts) const {
-        GibbsCurves r;
-        r.points = ts.size();
-        r.gibbs.assign((2 + s_.size()) * ts.size(), 0.0);
-        size_t n = 0;
-        detail::check(tl_pure_gibbs_curves_isobaric(fluid_.get(), component_, s_.data(), s_.size(), p, ts.data(),
-                                                    ts.size(), r.gibbs.data(), r.gibbs.size(), nullptr, 0, &n));
-        r.crossings.resize(n);
-        detail::check(tl_pure_gibbs_curves_isobaric(fluid_.get(), component_, s_.data(), s_.size(), p, ts.data(),
-                                                    ts.size(), r.gibbs.data(), r.gibbs.size(), r.crossings.data(),
-                                                    r.crossings.size(), &n));
-        return r;
+    GibbsCurves gibbs_curves_isobaric(double p, Span ts) const { return curves(tl_pure_gibbs_curves_isobaric, p, ts); }
+    /// g(p) of every phase at t (K) on the pressure grid ps (Pa, ascending).
+    GibbsCurves gibbs_curves_isothermal(double t, Span ps) const {
+        return curves(tl_pure_gibbs_curves_isothermal, t, ps);
+    }
+    /// The state of one phase at (t, p); std::nullopt where the phase does not exist.
+    std::optional<tl_pure_phase_point> phase_state(tl_pure_phase phase, double t, double p) const {
+        tl_pure_phase_point out;
+        bool exists = false;
+        detail::check(
+            tl_pure_phase_state(fluid_.get(), component_, s_.data(), s_.size(), phase, t, p, &out, &exists));
+        if (!exists) return std::nullopt;
+        return out;
+    }
+    /// The boundary of phases a and b over a grid of temperatures (K, axis TL_TRACE_TEMPERATURE)
+    /// or pressures (Pa, TL_TRACE_PRESSURE).
+    std::vector<tl_coexistence> trace(tl_pure_phase a, tl_pure_phase b, tl_trace_axis axis, Span grid,
+                                      const double* guess = nullptr) const {
+        std::vector<tl_coexistence> out(grid.size());
+        detail::check(tl_pure_trace(fluid_.get(), component_, s_.data(), s_.size(), a, b, axis, grid.data(),
+                                    grid.size(), guess, out.data(), out.size()));
+        return out;
     }
 
 private:
+    template <class F>
+    GibbsCurves curves(F f, double fixed, Span grid) const {
+        GibbsCurves r;
+        r.points = grid.size();
+        r.gibbs.assign((2 + s_.size()) * grid.size(), 0.0);
+        size_t n = 0;
+        detail::check(f(fluid_.get(), component_, s_.data(), s_.size(), fixed, grid.data(), grid.size(),
+                        r.gibbs.data(), r.gibbs.size(), nullptr, 0, &n));
+        r.crossings.resize(n);
+        detail::check(f(fluid_.get(), component_, s_.data(), s_.size(), fixed, grid.data(), grid.size(),
+                        r.gibbs.data(), r.gibbs.size(), r.crossings.data(), r.crossings.size(), &n));
+        return r;
+    }
     Model fluid_;
     size_t component_;
     std::vector<const tl_solid*> s_;
@@ -542,6 +583,15 @@ inline Result Model::stability(double t, double p, Span n, const tl_stability_op
 
 /// PT flash of amounts n at (t, p) over the fluid phases of `fluid` and the given solids; the
 /// fluid part goes into `fluid_part` (emptied when everything froze).
+/// The frost point (K) of the pure solid `solid` from a fluid of amounts n of `fluid` at p (Pa),
+/// searched from t_guess (K).
+inline double frost_point_temperature(const Model& fluid, const Solid& solid, double p, Span n, double t_guess,
+                                      const tl_flash_options* opts = nullptr) {
+    double t = 0;
+    detail::check(tl_frost_point_temperature(fluid.get(), solid.get(), p, n.data(), n.size(), t_guess, opts, &t));
+    return t;
+}
+
 inline SolidFlash flash_with_solids(const Model& fluid, const std::vector<const Solid*>& solids, double t, double p,
                                     Span n, Result& fluid_part, const tl_flash_options* opts = nullptr) {
     std::vector<const tl_solid*> s;

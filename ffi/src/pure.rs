@@ -7,8 +7,10 @@ use crate::boundary::*;
 use crate::flash::{flash_options, tl_flash_options};
 use crate::model::{component_index, model_ref, tl_model};
 use crate::result::{ResultData, store_flash, tl_result, write};
+use std::ffi::c_char;
 use tieline::equilibrium::{
-    Coexistence, PhasePoint, PurePhase, PurePhases, SolidFlashOptions, SolidPhaseSpec, flash_pt_with_solids,
+    Coexistence, GibbsCurves, PhasePoint, PurePhase, PurePhases, SolidFlashOptions, SolidPhaseSpec,
+    flash_pt_with_solids, frost_point_temperature,
 };
 use tieline::model::{FluidModel, FusionData, FusionSolid, IceIh, Model, SolidModel};
 
@@ -78,6 +80,101 @@ pub unsafe extern "C" fn tl_solid_carbon_dioxide_new(
             ));
         }
         new_solid(out, || Ok(Box::new(FusionSolid::anchored(m, i, data)?)))
+    })
+}
+
+/// Fusion data of a pure solid, for `tl_solid_fusion_new` (SI units).
+#[repr(C)]
+#[derive(Debug, Clone, Copy)]
+pub struct tl_fusion_data {
+    /// Triple-point temperature, K (> 0, strictly inside [`t_min`, `t_max`]).
+    pub t_triple: f64,
+    /// Published triple-point pressure, Pa (> 0; kept for reference: the solid's own triple
+    /// point lies at the fluid model's vapour pressure at `t_triple`).
+    pub p_triple: f64,
+    /// Enthalpy of fusion at the triple point, J/mol (> 0).
+    pub enthalpy_of_fusion: f64,
+    /// Heat-capacity difference cp(liquid) − cp(solid) at the triple point, J/(mol K).
+    pub delta_cp: f64,
+    /// Molar volume of the solid, m3/mol (> 0; taken constant).
+    pub solid_molar_volume: f64,
+    /// Lowest temperature of evaluation, K (> 0).
+    pub t_min: f64,
+    /// Highest temperature of evaluation, K.
+    pub t_max: f64,
+    /// Highest pressure of evaluation, Pa (> 0).
+    pub p_max: f64,
+}
+
+/// A pure solid of component `component` of `fluid` from user fusion data `data`, anchored
+/// like `tl_solid_carbon_dioxide_new` (the solid's Gibbs energy equals the fluid's saturated
+/// liquid's at `t_triple`). Its species is the component's name. `source` (may be NULL) is a
+/// NUL-terminated UTF-8 note of where the numbers come from, kept with the solid.
+///
+/// Errors: `TL_STATUS_INVALID_INPUT` (a value out of range, naming the field; a heat-capacity
+/// difference that leaves the solid cp ≤ 0), `TL_STATUS_INDEX_OUT_OF_RANGE` (component),
+/// `TL_STATUS_NO_SOLUTION` (the fluid has no saturation at `t_triple`).
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_solid_fusion_new(
+    fluid: *const tl_model,
+    component: usize,
+    data: *const tl_fusion_data,
+    source: *const c_char,
+    out: *mut *const tl_solid,
+) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        let (m, d) = unsafe { (model_ref(fluid)?, slice(data, 1, "data")?[0]) };
+        let i = component_index(m, component)?;
+        let source = if source.is_null() {
+            String::from("user data (no source given)")
+        } else {
+            // SAFETY: caller contract.
+            unsafe { c_str(source, "source")? }.to_owned()
+        };
+        let data = FusionData {
+            species: m.component_name(i).to_owned(),
+            t_triple: d.t_triple,
+            p_triple: d.p_triple,
+            enthalpy_of_fusion: d.enthalpy_of_fusion,
+            delta_cp: d.delta_cp,
+            solid_molar_volume: d.solid_molar_volume,
+            t_min: d.t_min,
+            t_max: d.t_max,
+            p_max: d.p_max,
+            source,
+        };
+        new_solid(out, || Ok(Box::new(FusionSolid::anchored(m, i, data)?)))
+    })
+}
+
+/// A second handle to the same solid (shares the data; each handle is freed separately).
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_solid_clone(solid: *const tl_solid, out: *mut *const tl_solid) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        let out = unsafe { Out::new(out, "out")? };
+        // SAFETY: caller contract.
+        let a = unsafe { clone_arc(solid)? };
+        out.set(arc_handle(a));
+        Ok(())
+    })
+}
+
+/// The species name of a solid (e.g. "water"), with the buffer convention of
+/// `tl_model_component_name`.
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_solid_species(
+    solid: *const tl_solid,
+    buf: *mut c_char,
+    len: usize,
+    needed: *mut usize,
+) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        let s = unsafe { try_ref(solid)? };
+        // SAFETY: caller contract.
+        unsafe { write_text(s.solid.species(), buf, len, needed, false) }
     })
 }
 
@@ -424,6 +521,71 @@ pub struct tl_gibbs_crossing {
     pub stable: bool,
 }
 
+/// Writes Gibbs-energy curves computed by `compute` on the grid `grid` (`grid_len` values)
+/// into the caller's arrays, with the conventions of `tl_pure_gibbs_curves_isobaric`.
+///
+/// # Safety
+/// As `tl_pure_gibbs_curves_isobaric`.
+#[allow(clippy::too_many_arguments)]
+unsafe fn write_curves(
+    num_solids: usize,
+    grid: *const f64,
+    grid_len: usize,
+    grid_name: &str,
+    gibbs: *mut f64,
+    gibbs_len: usize,
+    crossings: *mut tl_gibbs_crossing,
+    crossings_len: usize,
+    num_crossings: *mut usize,
+    compute: impl FnOnce(&[f64]) -> tieline::Result<GibbsCurves>,
+) -> FfiResult {
+    // SAFETY: forwarded contract.
+    let xs = unsafe { slice(grid, grid_len, grid_name)? };
+    let need = (2 + num_solids)
+        .checked_mul(xs.len())
+        .ok_or_else(|| FfiError::invalid(grid_name, "too many grid points"))?;
+    // SAFETY: forwarded contract.
+    let (g_out, nc_out) = unsafe {
+        (
+            OutArray::new(gibbs, gibbs_len, need, "gibbs")?,
+            Out::optional(num_crossings, "num_crossings")?,
+        )
+    };
+    // SAFETY: forwarded contract (`crossings_len` entries, checked against the count below).
+    let c_out = unsafe { OutArray::optional(crossings, crossings_len, 0, "crossings")? };
+    let curves = compute(xs)?;
+    let found = curves.crossings.len();
+    if c_out.is_some() && crossings_len < found {
+        if let Some(n) = nc_out {
+            n.set(found);
+        }
+        return Err(FfiError::new(
+            tl_status::BufferTooSmall,
+            format!("crossings holds {crossings_len} entries; {found} are required"),
+        ));
+    }
+    for (k, (_, g)) in curves.curves.iter().enumerate() {
+        let row: Vec<f64> = g.iter().map(|v| v.unwrap_or(f64::NAN)).collect();
+        g_out.write(k * xs.len(), &row);
+    }
+    if let Some(c) = c_out {
+        for (k, x) in curves.crossings.iter().enumerate() {
+            c.set(
+                k,
+                tl_gibbs_crossing {
+                    point: x.point.into(),
+                    gibbs: x.gibbs,
+                    stable: x.stable,
+                },
+            );
+        }
+    }
+    if let Some(n) = nc_out {
+        n.set(found);
+    }
+    Ok(())
+}
+
 /// Molar Gibbs energies g(T) (J/mol) of every phase at `pressure` (Pa) on the grid
 /// `temperatures` (`num_temperatures` ≥ 2 values, K, strictly ascending).
 ///
@@ -450,54 +612,158 @@ pub unsafe extern "C" fn tl_pure_gibbs_curves_isobaric(
 ) -> tl_status {
     ffi_boundary!({
         // SAFETY: caller contract.
-        let (set, ts) = unsafe {
+        let set = unsafe { phase_set(fluid, component, solids, num_solids)? };
+        // SAFETY: caller contract.
+        unsafe {
+            write_curves(
+                num_solids,
+                temperatures,
+                num_temperatures,
+                "temperatures",
+                gibbs,
+                gibbs_len,
+                crossings,
+                crossings_len,
+                num_crossings,
+                |ts| set.gibbs_curves_isobaric(pressure, ts),
+            )
+        }
+    })
+}
+
+/// Molar Gibbs energies g(p) (J/mol) of every phase at `temperature` (K) on the grid
+/// `pressures` (`num_pressures` ≥ 2 values, Pa, strictly ascending); the crossings are
+/// refined by the coexistence solve at that temperature (vapour pressure, sublimation or
+/// melting pressure). Output arrays and errors as `tl_pure_gibbs_curves_isobaric`.
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_pure_gibbs_curves_isothermal(
+    fluid: *const tl_model,
+    component: usize,
+    solids: *const *const tl_solid,
+    num_solids: usize,
+    temperature: f64,
+    pressures: *const f64,
+    num_pressures: usize,
+    gibbs: *mut f64,
+    gibbs_len: usize,
+    crossings: *mut tl_gibbs_crossing,
+    crossings_len: usize,
+    num_crossings: *mut usize,
+) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        let set = unsafe { phase_set(fluid, component, solids, num_solids)? };
+        // SAFETY: caller contract.
+        unsafe {
+            write_curves(
+                num_solids,
+                pressures,
+                num_pressures,
+                "pressures",
+                gibbs,
+                gibbs_len,
+                crossings,
+                crossings_len,
+                num_crossings,
+                |ps| set.gibbs_curves_isothermal(temperature, ps),
+            )
+        }
+    })
+}
+
+/// The state of one phase (`TL_PURE_*`) of the pure substance at `temperature` (K) and
+/// `pressure` (Pa). `*exists` receives whether the phase exists there (a fluid root of that
+/// kind, a solid inside its model's range); `*out` is written only when it does.
+///
+/// Errors: `TL_STATUS_INVALID_INPUT` (T, p, phase code), `TL_STATUS_INDEX_OUT_OF_RANGE`.
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_pure_phase_state(
+    fluid: *const tl_model,
+    component: usize,
+    solids: *const *const tl_solid,
+    num_solids: usize,
+    phase: tl_pure_phase,
+    temperature: f64,
+    pressure: f64,
+    out: *mut tl_pure_phase_point,
+    exists: *mut bool,
+) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        let (set, out, exists) = unsafe {
             (
                 phase_set(fluid, component, solids, num_solids)?,
-                slice(temperatures, num_temperatures, "temperatures")?,
+                Out::new(out, "out")?,
+                Out::new(exists, "exists")?,
             )
         };
-        let need = (2 + num_solids)
-            .checked_mul(ts.len())
-            .ok_or_else(|| FfiError::invalid("num_temperatures", "too large"))?;
+        let ph = pure_phase(phase, num_solids, "phase")?;
+        match set.evaluate(ph, temperature, pressure)? {
+            Some(p) => {
+                out.set(p.into());
+                exists.set(true);
+            }
+            None => exists.set(false),
+        }
+        Ok(())
+    })
+}
+
+/// Which coordinate a boundary trace steps along.
+pub type tl_trace_axis = u32;
+/// Step along temperature: the coexistence pressure at each grid temperature (K).
+pub const TL_TRACE_TEMPERATURE: tl_trace_axis = 1;
+/// Step along pressure: the coexistence temperature at each grid pressure (Pa).
+pub const TL_TRACE_PRESSURE: tl_trace_axis = 2;
+
+/// The boundary where `phase_a` and `phase_b` coexist, traced over `grid` (`num_points`
+/// values: temperatures in K for `TL_TRACE_TEMPERATURE`, pressures in Pa for
+/// `TL_TRACE_PRESSURE`), each point's Newton solve started from the previous point
+/// extrapolated with its Clapeyron slope, the first from `guess` (Pa or K; may be NULL).
+/// `out` (`out_len` ≥ `num_points`) receives one coexistence point per grid value, written
+/// only if every point succeeds.
+///
+/// Errors: those of `tl_pure_coexistence_temperature`; a point that fails stops the trace,
+/// and the message names its index.
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_pure_trace(
+    fluid: *const tl_model,
+    component: usize,
+    solids: *const *const tl_solid,
+    num_solids: usize,
+    phase_a: tl_pure_phase,
+    phase_b: tl_pure_phase,
+    axis: tl_trace_axis,
+    grid: *const f64,
+    num_points: usize,
+    guess_value: *const f64,
+    out: *mut tl_coexistence,
+    out_len: usize,
+) -> tl_status {
+    ffi_boundary!({
         // SAFETY: caller contract.
-        let (g_out, nc_out) = unsafe {
+        let (set, xs, g, out) = unsafe {
             (
-                OutArray::new(gibbs, gibbs_len, need, "gibbs")?,
-                Out::optional(num_crossings, "num_crossings")?,
+                phase_set(fluid, component, solids, num_solids)?,
+                slice(grid, num_points, "grid")?,
+                guess(guess_value, "guess")?,
+                OutArray::new(out, out_len, num_points, "out")?,
             )
         };
-        // SAFETY: caller contract (`crossings_len` entries, checked against the count below).
-        let c_out = unsafe { OutArray::optional(crossings, crossings_len, 0, "crossings")? };
-        let curves = set.gibbs_curves_isobaric(pressure, ts)?;
-        let found = curves.crossings.len();
-        if c_out.is_some() && crossings_len < found {
-            if let Some(n) = nc_out {
-                n.set(found);
+        let a = pure_phase(phase_a, num_solids, "phase_a")?;
+        let b = pure_phase(phase_b, num_solids, "phase_b")?;
+        let pts = match axis {
+            TL_TRACE_TEMPERATURE => set.trace_along_temperature(a, b, xs, g)?,
+            TL_TRACE_PRESSURE => set.trace_along_pressure(a, b, xs, g)?,
+            other => {
+                return Err(FfiError::invalid(
+                    "axis",
+                    format!("{other}; TL_TRACE_TEMPERATURE (1) or TL_TRACE_PRESSURE (2) is required"),
+                ));
             }
-            return Err(FfiError::new(
-                tl_status::BufferTooSmall,
-                format!("crossings holds {crossings_len} entries; {found} are required"),
-            ));
-        }
-        for (k, (_, g)) in curves.curves.iter().enumerate() {
-            let row: Vec<f64> = g.iter().map(|v| v.unwrap_or(f64::NAN)).collect();
-            g_out.write(k * ts.len(), &row);
-        }
-        if let Some(c) = c_out {
-            for (k, x) in curves.crossings.iter().enumerate() {
-                c.set(
-                    k,
-                    tl_gibbs_crossing {
-                        point: x.point.into(),
-                        gibbs: x.gibbs,
-                        stable: x.stable,
-                    },
-                );
-            }
-        }
-        if let Some(n) = nc_out {
-            n.set(found);
-        }
+        };
+        let rows: Vec<tl_coexistence> = pts.into_iter().map(Into::into).collect();
+        out.write(0, &rows);
         Ok(())
     })
 }
@@ -638,6 +904,43 @@ pub unsafe extern "C" fn tl_flash_with_solids(
             residual: d.residual,
             min_absent_margin: d.min_absent_margin,
         });
+        Ok(())
+    })
+}
+
+/// The frost point: the temperature (K) at which the pure solid `solid` first appears from a
+/// fluid of amounts `n` (`len` values, mol) of `model` at `pressure` (Pa), where the solid's
+/// fugacity equals its species' fugacity in the flashed fluid. The search brackets from
+/// `t_guess` (K) in steps of 2 % and refines by false position. `options` (may be NULL) are
+/// those of the fluid flashes. `*out` receives the temperature.
+///
+/// Errors: `TL_STATUS_INVALID_INPUT` (p, T guess, amounts; the solid's species not a component
+/// of the model or absent from the feed), `TL_STATUS_NO_SOLUTION` (no sign change within 60
+/// steps of the guess), `TL_STATUS_NOT_CONVERGED`, and those of `tl_flash`.
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_frost_point_temperature(
+    model: *const tl_model,
+    solid: *const tl_solid,
+    pressure: f64,
+    n: *const f64,
+    len: usize,
+    t_guess: f64,
+    options: *const tl_flash_options,
+    out: *mut f64,
+) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        let (m, s, n, fo, out) = unsafe {
+            (
+                model_ref(model)?,
+                try_ref(solid)?,
+                slice(n, len, "n")?,
+                flash_options(options)?,
+                Out::new(out, "out")?,
+            )
+        };
+        let spec = SolidPhaseSpec::matching(m, s.solid.as_ref())?;
+        out.set(frost_point_temperature(m, spec, pressure, n, t_guess, &fo)?);
         Ok(())
     })
 }

@@ -280,6 +280,52 @@ int main() {
         CHECK(nx == 1, "the number of crossings is reported with a short crossings array");
         CHECK(g[0] == -7, "no curves written on a short crossings array");
 
+        // Isothermal curves, one phase's state, traces, solid handles.
+        double pgrid[3] = {1e5, 2e5, 3e5};
+        expect(tl_pure_gibbs_curves_isothermal(water, 0, solids, 1, nan, pgrid, 3, g, 9, nullptr, 0, nullptr),
+               TL_STATUS_INVALID_INPUT, "temperature", "isothermal curves at NaN T");
+        expect(tl_pure_gibbs_curves_isothermal(water, 0, solids, 1, 300.0, nullptr, 3, g, 9, nullptr, 0, nullptr),
+               TL_STATUS_NULL_POINTER, "pressures", "isothermal curves, NULL grid");
+        bool ex = true;
+        expect(tl_pure_phase_state(water, 0, solids, 1, TL_PURE_LIQUID, 300.0, 1e5, &pp, nullptr),
+               TL_STATUS_NULL_POINTER, "exists", "phase state, NULL exists");
+        expect(tl_pure_phase_state(water, 0, solids, 1, 5, 300.0, 1e5, &pp, &ex), TL_STATUS_INVALID_INPUT, "phase",
+               "phase state, unknown phase code");
+        CHECK(ex, "exists not written on error");
+        tl_coexistence line[2];
+        line[0].temperature = -1;
+        double tgrid[2] = {300.0, 310.0};
+        expect(tl_pure_trace(water, 0, solids, 1, TL_PURE_LIQUID, TL_PURE_VAPOR, TL_TRACE_TEMPERATURE, tgrid, 2,
+                             nullptr, line, 1),
+               TL_STATUS_BUFFER_TOO_SMALL, "out", "trace into a short array");
+        double tbad[2] = {300.0, 700.0};
+        expect(tl_pure_trace(water, 0, solids, 1, TL_PURE_LIQUID, TL_PURE_VAPOR, TL_TRACE_TEMPERATURE, tbad, 2,
+                             nullptr, line, 2),
+               TL_STATUS_NO_SOLUTION, "point 1", "trace past the critical point names the point");
+        CHECK(line[0].temperature == -1, "no trace written when a point fails");
+        const tl_solid* sc = reinterpret_cast<const tl_solid*>(0x10);
+        expect(tl_solid_clone(nullptr, &sc), TL_STATUS_NULL_POINTER, "", "clone of NULL");
+        expect(tl_solid_clone(reinterpret_cast<const tl_solid*>(water), &sc), TL_STATUS_INVALID_HANDLE, "solid",
+               "clone of a model as a solid");
+        CHECK(sc == reinterpret_cast<const tl_solid*>(0x10), "no clone written on error");
+        char sbuf[3];
+        size_t sneed = 0;
+        expect(tl_solid_species(solids[0], sbuf, sizeof sbuf, &sneed), TL_STATUS_BUFFER_TOO_SMALL, "",
+               "species into a short buffer");
+        CHECK(sneed == 6, "species size reported");
+        tl_fusion_data fd{216.592, 0.51795e6, 9.0e3, 27.0, 2.9e-5, 150.0, 200.0, 50e6};
+        expect(tl_solid_fusion_new(water, 0, &fd, nullptr, &sc), TL_STATUS_INVALID_INPUT, "t_max",
+               "fusion data whose range excludes the triple point");
+        double tf = -1;
+        double one_w[1] = {1.0};
+        expect(tl_frost_point_temperature(water, solids[0], nan, one_w, 1, 260.0, nullptr, &tf),
+               TL_STATUS_INVALID_INPUT, "pressure", "frost point at NaN p");
+        expect(tl_frost_point_temperature(water, solids[0], 1e5, one_w, 1, 260.0, nullptr, nullptr),
+               TL_STATUS_NULL_POINTER, "out", "frost point, NULL out");
+        expect(tl_frost_point_temperature(m, solids[0], 1e5, z, 2, 260.0, nullptr, &tf), TL_STATUS_INVALID_INPUT,
+               "water", "frost point of ice from a fluid without water");
+        CHECK(tf == -1, "no frost point written on error");
+
         // The flash with solids.
         tl_solid_flash_summary sum{};
         sum.fluid_amount = -3;

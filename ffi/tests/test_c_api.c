@@ -226,9 +226,88 @@ int main(void) {
     tl_triple_point tp;
     OK(tl_pure_triple_point(water, 0, solids, 1, 0, NULL, &tp));
     CHECK(fabs(tp.temperature - 273.16) < 1e-5 && fabs(tp.pressure - 611.655) < 5e-4, "triple point 273.16 K, 611.655 Pa");
+    /* G(p) at 450 K: the liquid and vapour curves cross once, at the vapour pressure
+       0.932203564 MPa (IAPWS R6-95(2018) Table 8); ice is outside its range there (NaN). */
+    double ps[11];
+    for (int k = 0; k < 11; ++k) ps[k] = 0.5e6 + 0.1e6 * k;
+    double g[33];
+    tl_gibbs_crossing cross[4];
+    size_t nx = 0;
+    OK(tl_pure_gibbs_curves_isothermal(water, 0, solids, 1, 450.0, ps, 11, g, 33, cross, 4, &nx));
+    CHECK(nx == 1 && cross[0].stable, "G(p) at 450 K: one stable crossing");
+    CHECK(fabs(cross[0].point.pressure - 0.932203564e6) / 0.932203564e6 < 1e-8,
+          "G(p) crossing at 0.932203564 MPa (R6-95 Table 8)");
+    CHECK(isnan(g[22]) && isnan(g[32]), "no ice at 450 K");
+    CHECK(g[11] < g[0] && g[21] > g[10], "vapour below liquid at 0.5 MPa, above it at 1.5 MPa");
+    CHECK(tl_pure_gibbs_curves_isothermal(water, 0, solids, 1, 450.0, ps, 11, g, 32, NULL, 0, NULL) ==
+              TL_STATUS_BUFFER_TOO_SMALL, "G(p): a gibbs buffer one short is refused");
+
+    /* The vapour-pressure curve traced over the three temperatures of R6-95(2018) Table 8. */
+    double ts[3] = {275.0, 450.0, 625.0};
+    double want[3] = {0.698451167e3, 0.932203564e6, 0.169082693e8};
+    tl_coexistence line[3];
+    OK(tl_pure_trace(water, 0, solids, 1, TL_PURE_LIQUID, TL_PURE_VAPOR, TL_TRACE_TEMPERATURE, ts, 3, NULL, line, 3));
+    for (int k = 0; k < 3; ++k)
+      CHECK(fabs(line[k].pressure - want[k]) / want[k] < 1e-8, "traced p_sat as R6-95 Table 8");
+    /* The melting curve traced along pressure: IAPWS R10-06 gives 273.152519 K at 101325 Pa;
+       the Clapeyron slope is negative, so the melting point falls as p rises. */
+    double pm[3] = {101325.0, 10e6, 50e6};
+    tl_coexistence mline[3];
+    OK(tl_pure_trace(water, 0, solids, 1, TL_PURE_SOLID, TL_PURE_LIQUID, TL_TRACE_PRESSURE, pm, 3, NULL, mline, 3));
+    CHECK(fabs(mline[0].temperature - 273.152519) < 1e-6, "traced melting point at 101325 Pa (R10-06)");
+    CHECK(mline[1].temperature < mline[0].temperature && mline[2].temperature < mline[1].temperature,
+          "melting temperature falls with pressure");
+    CHECK(tl_pure_trace(water, 0, solids, 1, TL_PURE_LIQUID, TL_PURE_VAPOR, 7, ts, 3, NULL, line, 3) ==
+              TL_STATUS_INVALID_INPUT, "trace: unknown axis refused");
+
+    /* One phase's state: liquid water at 300 K, 101325 Pa exists; ice at 450 K does not. */
+    tl_pure_phase_point pt;
+    bool exists = false;
+    OK(tl_pure_phase_state(water, 0, solids, 1, TL_PURE_LIQUID, 300.0, 101325.0, &pt, &exists));
+    CHECK(exists && pt.phase == TL_PURE_LIQUID && pt.molar_volume > 1.7e-5 && pt.molar_volume < 1.9e-5,
+          "liquid water at 300 K: about 18 cm3/mol");
+    OK(tl_pure_phase_state(water, 0, solids, 1, TL_PURE_SOLID, 450.0, 101325.0, &pt, &exists));
+    CHECK(!exists, "no ice at 450 K");
+
+    /* Solid handles: a clone is the same solid; the species is "water". */
+    const tl_solid *ice2 = NULL;
+    OK(tl_solid_clone(ice, &ice2));
+    char species[16];
+    size_t need = 0;
+    OK(tl_solid_species(ice2, species, sizeof species, &need));
+    CHECK(strcmp(species, "water") == 0 && need == 6, "ice species is water");
+    tl_solid_free(ice2);
+
     tl_model_free(water);
     tl_solid_free(ice);
     tl_solid_free(NULL);
+  }
+
+  /* Dry ice from user fusion data equal to the built-in carbon-dioxide data is the same solid. */
+  {
+    const tl_model *co2 = NULL;
+    const char *names[] = {"carbon dioxide"};
+    OK(tl_model_new(names, 1, TL_CUBIC_PENG_ROBINSON, &co2));
+    const tl_solid *built_in = NULL, *user = NULL;
+    OK(tl_solid_carbon_dioxide_new(co2, 0, &built_in));
+    tl_fusion_data d = {216.592, 0.51795e6, 9.0e3, 27.0, 44.0095e-3 / 1510.0, 150.0, 260.0, 50e6};
+    OK(tl_solid_fusion_new(co2, 0, &d, "test: the built-in dry-ice numbers", &user));
+    const tl_solid *both[] = {built_in, user};
+    tl_pure_phase_point a, b;
+    bool ea = false, eb = false;
+    OK(tl_pure_phase_state(co2, 0, both, 2, TL_PURE_SOLID, 200.0, 1e5, &a, &ea));
+    OK(tl_pure_phase_state(co2, 0, both, 2, TL_PURE_SOLID + 1, 200.0, 1e5, &b, &eb));
+    CHECK(ea && eb && a.gibbs == b.gibbs && a.molar_volume == b.molar_volume, "user fusion data = built-in solid");
+    d.enthalpy_of_fusion = -1.0;
+    const tl_solid *bad = NULL;
+    CHECK(tl_solid_fusion_new(co2, 0, &d, NULL, &bad) == TL_STATUS_INVALID_INPUT && bad == NULL,
+          "negative enthalpy of fusion refused");
+    last_error(msg, sizeof msg);
+    CHECK(strstr(msg, "enthalpy_of_fusion") != NULL, "the message names the field");
+    CHECK(tl_solid_fusion_new(co2, 0, NULL, NULL, &bad) == TL_STATUS_NULL_POINTER, "NULL fusion data refused");
+    tl_solid_free(built_in);
+    tl_solid_free(user);
+    tl_model_free(co2);
   }
 
   tl_result_free(res);

@@ -337,6 +337,17 @@ int main(int argc, char** argv) {
             fluid_co2 += fluid.phase(k).amount * fluid.composition(k)[1];
         CHECK(std::fabs(r.solids[0].amount + fluid_co2 - z[1]) < 1e-14, "solid flash: CO2 balance");
         CHECK(std::fabs(r.solids[0].margin) < 1e-9, "solid flash: a present solid has zero margin (tolerance 1e-9)");
+
+        // The frost point of the same gas, as Rust; the solid flash just above it holds no
+        // dry ice and just below it some (a consistency check of the two solvers).
+        const auto& fr = sf["frost_point"];
+        CHECK(status_of(fr) == TL_STATUS_OK, "frost point: Rust status");
+        double tf = tieline::frost_point_temperature(m, dry, sf["pressure"].number(), z, sf["frost_guess"].number());
+        CHECK_SAME(tf, fr["temperature"].number(), "frost point as Rust");
+        Result above, below;
+        auto ra = tieline::flash_with_solids(m, {&dry}, tf + 0.01, sf["pressure"].number(), z, above);
+        auto rb = tieline::flash_with_solids(m, {&dry}, tf - 0.01, sf["pressure"].number(), z, below);
+        CHECK(!ra.solids[0].present && rb.solids[0].present, "no dry ice 0.01 K above the frost point, some below");
     }
 
     // Batch sweep on one and two threads, as the Rust batch on the same thread counts.

@@ -482,21 +482,32 @@ impl<'a, F: FluidModel + ?Sized> PurePhases<'a, F> {
         let mut out: Vec<Coexistence> = Vec::with_capacity(ts.len());
         let mut guess = p_guess;
         for (i, &t) in ts.iter().enumerate() {
-            // Extrapolate with the Clapeyron slope of the previous point.
+            // Extrapolate from the previous point with its Clapeyron slope: linearly in p for
+            // a condensed pair, and for a pair with the vapour in the Clausius–Clapeyron form
+            // ln p = ln p0 − (Δh/R)(1/T − 1/T0), with Δh/R = (dp/dT) T0² / p0 (ideal vapour,
+            // negligible condensed volume).
             if let Some(prev) = out.last() {
-                let dt = t - prev.temperature;
-                let p_lin = prev.pressure + prev.clapeyron_slope * dt;
+                let (t0, p0) = (prev.temperature, prev.pressure);
+                let p_lin = p0 + prev.clapeyron_slope * (t - t0);
                 let log = a == PurePhase::Vapor || b == PurePhase::Vapor;
                 guess = Some(if log || p_lin <= 0.0 {
-                    prev.pressure * (prev.clapeyron_slope / prev.pressure * dt).exp()
+                    let dh_r = prev.clapeyron_slope * t0 * t0 / p0;
+                    p0 * (dh_r * (1.0 / t0 - 1.0 / t)).exp()
                 } else {
                     p_lin
                 });
             }
-            let c = self.coexistence_at_temperature(a, b, t, guess).map_err(|e| match e {
-                Error::NoSolution(m) => Error::NoSolution(format!("point {i} of the trace: {m}")),
-                e => e,
-            })?;
+            // A guess from a long extrapolation may miss; the solver's own start is the fallback.
+            let c = self
+                .coexistence_at_temperature(a, b, t, guess)
+                .or_else(|e| match guess {
+                    Some(_) if out.last().is_some() => self.coexistence_at_temperature(a, b, t, None),
+                    _ => Err(e),
+                })
+                .map_err(|e| match e {
+                    Error::NoSolution(m) => Error::NoSolution(format!("point {i} of the trace: {m}")),
+                    e => e,
+                })?;
             out.push(c);
         }
         Ok(out)
@@ -513,11 +524,29 @@ impl<'a, F: FluidModel + ?Sized> PurePhases<'a, F> {
     ) -> Result<Vec<Coexistence>> {
         let mut out: Vec<Coexistence> = Vec::with_capacity(ps.len());
         let mut guess = t_guess;
-        for &p in ps {
+        for (i, &p) in ps.iter().enumerate() {
             if let Some(prev) = out.last() {
-                guess = Some(prev.temperature + (p - prev.pressure) / prev.clapeyron_slope);
+                let (t0, p0) = (prev.temperature, prev.pressure);
+                let log = a == PurePhase::Vapor || b == PurePhase::Vapor;
+                // The inverse of the extrapolations of `trace_along_temperature`.
+                let t_next = if log {
+                    let dh_r = prev.clapeyron_slope * t0 * t0 / p0;
+                    1.0 / (1.0 / t0 - (p / p0).ln() / dh_r)
+                } else {
+                    t0 + (p - p0) / prev.clapeyron_slope
+                };
+                guess = (t_next.is_finite() && t_next > 0.0).then_some(t_next);
             }
-            let c = self.coexistence_at_pressure(a, b, p, guess)?;
+            let c = self
+                .coexistence_at_pressure(a, b, p, guess)
+                .or_else(|e| match guess {
+                    Some(_) if out.last().is_some() => self.coexistence_at_pressure(a, b, p, None),
+                    _ => Err(e),
+                })
+                .map_err(|e| match e {
+                    Error::NoSolution(m) => Error::NoSolution(format!("point {i} of the trace: {m}")),
+                    e => e,
+                })?;
             out.push(c);
         }
         Ok(out)

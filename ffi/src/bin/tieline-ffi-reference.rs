@@ -9,8 +9,8 @@ use serde_json::{Value, json};
 use tieline::equilibrium::{
     Coexistence, FlashContext, FlashOptions, FlashResult, PhasePoint, PurePhase, PurePhases, SaturationOptions,
     SolidFlashOptions, SolidPhaseSpec, StabilityOptions, bubble_pressure, bubble_temperature, dew_pressure,
-    dew_temperature, flash_batch, flash_pt, flash_pt_with_solids, saturation_pressure, saturation_temperature,
-    stability,
+    dew_temperature, flash_batch, flash_pt, flash_pt_with_solids, frost_point_temperature, saturation_pressure,
+    saturation_temperature, stability,
 };
 use tieline::model::{
     CubicEos, CubicKind, FluidModel, FusionData, FusionSolid, IceIh, Model, PhaseState, RootChoice, SolidModel,
@@ -152,7 +152,14 @@ fn solid_flash() -> Value {
                "fluid_flashes": r.diagnostics.fluid_flashes,
                "fluid": r.fluid.as_ref().map(flash_record)})
     });
-    json!({"names": ["methane", "carbon dioxide"], "temperature": t, "pressure": p, "feed": z, "result": rec})
+    // The frost point of the same gas at the same pressure, searched from 180 K.
+    let t_guess = 180.0;
+    let frost = or_status(
+        frost_point_temperature(&m, spec, p, &z, t_guess, &FlashOptions::default()),
+        |t| json!({"status": 0, "temperature": t}),
+    );
+    json!({"names": ["methane", "carbon dioxide"], "temperature": t, "pressure": p, "feed": z, "result": rec,
+           "frost_guess": t_guess, "frost_point": frost})
 }
 
 fn main() {

@@ -1,0 +1,89 @@
+//! Runs one benchmark operation of the 10-component Peng–Robinson mixture a given number of
+//! times, for instruction counting under `valgrind --tool=callgrind` (counts, unlike times,
+//! do not depend on the load of a shared machine). `benches/instructions.sh` runs every
+//! operation at two repetition counts and reports the difference per call and its ratio to
+//! one ln φ evaluation.
+//!
+//! Usage: `tieline-instructions OPERATION REPETITIONS`, OPERATION one of `ln-phi`,
+//! `ln-phi-derivs`, `cold`, `warm`, `single-phase`, `certificate`, `cold-certified`.
+
+use std::hint::black_box;
+use tieline::equilibrium::{FlashContext, FlashOptions, StabilityOptions, stability};
+use tieline::model::{FugacityWork, LnPhi, Need, RootChoice, ln_phi};
+use tieline_benches::{FEED, ONE_PHASE, TWO_PHASE, model};
+
+fn main() {
+    let args: Vec<String> = std::env::args().collect();
+    let usage = || -> ! {
+        eprintln!(
+            "usage: {} OPERATION REPETITIONS (ln-phi, ln-phi-derivs, cold, warm, single-phase, certificate, cold-certified)",
+            args[0]
+        );
+        std::process::exit(2)
+    };
+    if args.len() != 3 {
+        usage();
+    }
+    let reps: usize = args[2].parse().unwrap_or_else(|_| usage());
+    let m = model();
+    let (t2, p2) = TWO_PHASE;
+    let (t1, p1) = ONE_PHASE;
+    let nocert = FlashOptions {
+        certificate: false,
+        ..Default::default()
+    };
+    let mut w = FugacityWork::new(10);
+    let mut out = LnPhi::new(10);
+    let mut ctx = FlashContext::new(10);
+    let liquid = ctx.flash(&m, t2, p2, &FEED, &nocert).expect("flash").phases[1]
+        .composition
+        .clone();
+    let run = |f: &mut dyn FnMut()| {
+        for _ in 0..reps {
+            f();
+        }
+    };
+    match args[1].as_str() {
+        "ln-phi" | "ln-phi-derivs" => {
+            let need = if args[1] == "ln-phi" {
+                Need::VALUES
+            } else {
+                Need::COMPOSITION
+            };
+            run(&mut || {
+                ln_phi(&m, t2, p2, black_box(&FEED), RootChoice::Stable, need, &mut w, &mut out).expect("ln phi");
+            })
+        }
+        "cold" => run(&mut || {
+            ctx.reset();
+            black_box(ctx.flash(&m, t2, p2, &FEED, &nocert).expect("flash").phases.len());
+        }),
+        "warm" => {
+            let mut k = 0usize;
+            run(&mut || {
+                k += 1;
+                let t = t2 + if k.is_multiple_of(2) { 0.5 } else { -0.5 };
+                black_box(ctx.flash(&m, t, p2, &FEED, &nocert).expect("flash").phases.len());
+            })
+        }
+        "single-phase" => run(&mut || {
+            ctx.reset();
+            black_box(ctx.flash(&m, t1, p1, &FEED, &nocert).expect("flash").phases.len());
+        }),
+        "certificate" => run(&mut || {
+            black_box(
+                stability(&m, t2, p2, &liquid, &StabilityOptions::default())
+                    .expect("stability")
+                    .stable,
+            );
+        }),
+        "cold-certified" => {
+            let opts = FlashOptions::default();
+            run(&mut || {
+                ctx.reset();
+                black_box(ctx.flash(&m, t2, p2, &FEED, &opts).expect("flash").phases.len());
+            })
+        }
+        _ => usage(),
+    }
+}

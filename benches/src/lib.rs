@@ -40,3 +40,19 @@ pub fn model() -> CubicEos {
         .and_then(|m| m.with_pair(1, 3, 0.13, 0.0))
         .expect("benchmark model is valid")
 }
+
+/// Flash options of the hot-loop benchmarks: the defaults without the certificate.
+pub fn no_certificate() -> tieline::equilibrium::FlashOptions {
+    tieline::equilibrium::FlashOptions {
+        certificate: false,
+        ..Default::default()
+    }
+}
+
+/// The equilibrium liquid of the benchmark mixture at [`TWO_PHASE`] (mole fractions), the
+/// phase whose stability the certificate benchmark tests.
+pub fn equilibrium_liquid(m: &CubicEos) -> Vec<f64> {
+    let (t, p) = TWO_PHASE;
+    let r = tieline::equilibrium::flash_pt(m, t, p, &FEED, &no_certificate()).expect("the benchmark point flashes");
+    r.phases[1].composition.clone()
+}

@@ -22,7 +22,7 @@ use super::rachford_rice;
 use super::stability::{StabilityOptions, StabilityResult, stability_with};
 use crate::error::{Error, Result, check};
 use crate::model::{FluidModel, LnPhi, Need, PhaseKind, RootChoice, ln_phi};
-use crate::numerics::linalg::shifted_cholesky_solve;
+use crate::numerics::linalg::{cholesky_solve, shifted_cholesky_solve};
 use serde::{Deserialize, Serialize};
 
 /// Options of the PT flash.
@@ -277,6 +277,8 @@ pub struct FlashContext {
     cert: StabilityResult,
     prev_lnk: Vec<f64>,
     prev_two_phase: bool,
+    /// Whether `ws.phi_feed` holds ln φ of this call's feed (set by the feed's stability test).
+    feed_evaluated: bool,
     result: FlashResult,
     nc: usize,
     /// Newton variables: y-phase amounts v and x-phase amounts l = z − v, both carried so
@@ -345,6 +347,7 @@ impl FlashContext {
         }
         let mut diag = Diagnostics::default();
         let mut found = false;
+        self.feed_evaluated = false;
         if self.prev_two_phase {
             self.ws.lnk.copy_from_slice(&self.prev_lnk);
             let out = self.two_phase(model, t, p, opts, true, &mut diag)?;
@@ -383,6 +386,7 @@ impl FlashContext {
             ..opts.stability
         };
         stability_with(model, t, p, &z, &sopts, &[], &mut self.ws, &mut self.stab)?;
+        self.feed_evaluated = true;
         diag.stability_iterations = self.stab.iterations;
         if self.stab.stable {
             return Ok(false);
@@ -725,6 +729,12 @@ impl FlashContext {
     /// compositions, ln φ, G, the gradient (into `ws.rhs`, negated) and the residual.
     /// Returns `false` if a phase amount is not positive.
     fn eval_newton<M: FluidModel + ?Sized>(&mut self, model: &M, t: f64, p: f64) -> Result<bool> {
+        self.eval_newton_with(model, t, p, Need::COMPOSITION)
+    }
+
+    /// As [`Self::eval_newton`], with the derivatives of `need` (values only for a point
+    /// expected to be final, or to be left by a chord step).
+    fn eval_newton_with<M: FluidModel + ?Sized>(&mut self, model: &M, t: f64, p: f64, need: Need) -> Result<bool> {
         let nc = self.nc;
         let ws = &mut self.ws;
         let s = &mut self.split;
@@ -742,8 +752,8 @@ impl FlashContext {
         }
         // Each phase stays on the root it took at the previous step (one evaluation with
         // derivatives instead of two); `newton` re-checks the choice at convergence.
-        ln_phi(model, t, p, &s.x, s.root_x, Need::COMPOSITION, &mut ws.fw, &mut s.phi_x)?;
-        ln_phi(model, t, p, &s.y, s.root_y, Need::COMPOSITION, &mut ws.fw, &mut s.phi_y)?;
+        ln_phi(model, t, p, &s.x, s.root_x, need, &mut ws.fw, &mut s.phi_x)?;
+        ln_phi(model, t, p, &s.y, s.root_y, need, &mut ws.fw, &mut s.phi_y)?;
         if s.root_x == RootChoice::Stable {
             s.root_x = s.phi_x.root;
         }
@@ -752,17 +762,23 @@ impl FlashContext {
         }
         s.beta = beta;
         s.omb = omb;
-        s.gibbs = gibbs(&ws.z, s);
+        // G (as `gibbs`) and the gradient ln f^y − ln f^x from one logarithm per entry
+        // (every y_i, x_i of a present component is positive here).
         let mut err = 0.0f64;
+        let mut g = 0.0;
         for i in 0..nc {
             if ws.z[i] > 0.0 {
-                let gi = (s.y[i].ln() + s.phi_y.ln_phi[i]) - (s.x[i].ln() + s.phi_x.ln_phi[i]);
+                let mu_y = s.y[i].ln() + s.phi_y.ln_phi[i];
+                let mu_x = s.x[i].ln() + s.phi_x.ln_phi[i];
+                g += beta * s.y[i] * mu_y + omb * s.x[i] * mu_x;
+                let gi = mu_y - mu_x;
                 ws.rhs[i] = -gi;
                 err = err.max(gi.abs());
             } else {
                 ws.rhs[i] = 0.0;
             }
         }
+        s.gibbs = g;
         s.residual = if err.is_finite() { err } else { f64::INFINITY };
         Ok(true)
     }
@@ -804,6 +820,12 @@ impl FlashContext {
             }
         };
         set_lnk(self);
+        // Whether the current point carries composition derivatives. In the quadratic regime
+        // the last points are evaluated without them, and a point without them is left by a
+        // chord step: the previous Hessian's factor (still in `ws.chol`) with the new
+        // gradient (a simplified Newton step; Kelley, "Iterative Methods for Linear and
+        // Nonlinear Equations", SIAM 1995, §5.4, from memory).
+        let mut have_dn = true;
         for _ in 0..opts.max_newton_iterations {
             let err0 = self.split.residual;
             if err0 < opts.tolerance {
@@ -814,6 +836,7 @@ impl FlashContext {
                 if !self.eval_newton(model, t, p)? {
                     return Ok(SplitOutcome::NotConverged);
                 }
+                have_dn = true;
                 set_lnk(self);
                 continue;
             }
@@ -821,7 +844,11 @@ impl FlashContext {
                 return Ok(SplitOutcome::NotConverged);
             }
             diag.newton_iterations += 1;
-            {
+            let chord = !have_dn;
+            if chord {
+                self.ws.step.copy_from_slice(&self.ws.rhs);
+                cholesky_solve(&self.ws.chol, nc, &mut self.ws.step);
+            } else {
                 let ws = &mut self.ws;
                 let s = &self.split;
                 let (beta, omb) = (s.beta, s.omb);
@@ -846,6 +873,9 @@ impl FlashContext {
                     return Ok(SplitOutcome::NotConverged);
                 }
             }
+            // Quadratic regime (common practice, no source: a residual below 1e-3 before a
+            // Newton step): the candidate is evaluated without derivatives.
+            let need = if err0 < 1e-3 { Need::VALUES } else { Need::COMPOSITION };
             // Keep 0 < v_i < z_i (fraction to the boundary 0.9).
             let mut alpha: f64 = 1.0;
             for i in 0..nc {
@@ -866,7 +896,7 @@ impl FlashContext {
             let mut accepted = false;
             for _ in 0..12 {
                 self.move_newton(alpha);
-                if self.eval_newton(model, t, p)? {
+                if self.eval_newton_with(model, t, p, need)? {
                     let g1 = self.split.gibbs;
                     let err1 = self.split.residual;
                     // Near convergence G changes by round-off only: a falling residual suffices.
@@ -875,12 +905,35 @@ impl FlashContext {
                         break;
                     }
                 }
+                if chord {
+                    break;
+                }
                 alpha *= 0.5;
+            }
+            if !accepted && chord {
+                // The chord step did not descend: back to the point it left, with derivatives,
+                // for a full Newton step.
+                self.move_newton(0.0);
+                if !self.eval_newton(model, t, p)? {
+                    return Ok(SplitOutcome::NotConverged);
+                }
+                have_dn = true;
+                set_lnk(self);
+                continue;
             }
             if !accepted {
                 // Restore the last accepted point (its ln K is still in ws.lnk).
                 self.move_newton(0.0);
                 return Ok(SplitOutcome::NotConverged);
+            }
+            have_dn = need.composition;
+            if self.split.residual >= opts.tolerance && !have_dn && self.split.residual > 0.1 * err0 {
+                // Not in the quadratic regime after all (or the chord contracts slowly): the
+                // next step is a full Newton step from here.
+                if !self.eval_newton(model, t, p)? {
+                    return Ok(SplitOutcome::NotConverged);
+                }
+                have_dn = true;
             }
             // A full step that barely reduced the residual means a long, nearly flat valley of
             // G (close to a critical point): expand the step while G keeps falling.
@@ -901,6 +954,7 @@ impl FlashContext {
                 if !self.eval_newton(model, t, p)? {
                     return Ok(SplitOutcome::NotConverged);
                 }
+                have_dn = true;
             }
             set_lnk(self);
         }
@@ -975,18 +1029,22 @@ impl FlashContext {
         } else {
             let ws = &mut self.ws;
             let z = &ws.z;
-            ln_phi(
-                model,
-                t,
-                p,
-                z,
-                RootChoice::Stable,
-                Need::VALUES,
-                &mut ws.fw,
-                &mut ws.phi_a,
-            )?;
+            // The feed's stability test has evaluated it already at this (T, p).
+            if !self.feed_evaluated {
+                ln_phi(
+                    model,
+                    t,
+                    p,
+                    z,
+                    RootChoice::Stable,
+                    Need::VALUES,
+                    &mut ws.fw,
+                    &mut ws.phi_feed,
+                )?;
+            }
+            let phi = &ws.phi_feed;
             let ph = &mut r.phases[0];
-            ph.kind = Some(if ws.phi_a.liquid_like {
+            ph.kind = Some(if phi.liquid_like {
                 PhaseKind::Liquid
             } else {
                 PhaseKind::Vapor
@@ -994,13 +1052,13 @@ impl FlashContext {
             ph.fraction = 1.0;
             ph.amount = ntot;
             ph.composition.copy_from_slice(z);
-            ph.ln_phi.copy_from_slice(&ws.phi_a.ln_phi);
-            ph.molar_volume = ws.phi_a.v;
-            ph.z = ws.phi_a.z;
+            ph.ln_phi.copy_from_slice(&phi.ln_phi);
+            ph.molar_volume = phi.v;
+            ph.z = phi.z;
             diag.residual = 0.0;
             diag.gibbs = z
                 .iter()
-                .zip(&ws.phi_a.ln_phi)
+                .zip(&phi.ln_phi)
                 .filter(|(z, _)| **z > 0.0)
                 .map(|(z, l)| z * (z.ln() + l))
                 .sum();

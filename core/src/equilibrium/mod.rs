@@ -36,10 +36,14 @@ pub struct EquilibriumWork {
     pub(crate) fw: FugacityWork,
     pub(crate) phi_a: LnPhi,
     pub(crate) phi_b: LnPhi,
+    /// ln φ of the phase under the last stability test, at its (T, p, composition `sz`).
+    pub(crate) phi_feed: LnPhi,
     pub(crate) z: Vec<f64>,
     /// Composition of the phase under a stability test (kept apart from the flash feed `z`).
     pub(crate) sz: Vec<f64>,
     pub(crate) d: Vec<f64>,
+    /// ln sz_i (0 where sz_i = 0).
+    pub(crate) lnz: Vec<f64>,
     pub(crate) w: Vec<f64>,
     pub(crate) w_old: Vec<f64>,
     pub(crate) x: Vec<f64>,
@@ -72,10 +76,12 @@ impl EquilibriumWork {
         self.fw = FugacityWork::new(nc);
         self.phi_a = LnPhi::new(nc);
         self.phi_b = LnPhi::new(nc);
+        self.phi_feed = LnPhi::new(nc);
         for v in [
             &mut self.z,
             &mut self.sz,
             &mut self.d,
+            &mut self.lnz,
             &mut self.w,
             &mut self.w_old,
             &mut self.x,

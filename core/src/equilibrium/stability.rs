@@ -158,11 +158,12 @@ pub(crate) fn stability_with<M: FluidModel + ?Sized>(
         RootChoice::Stable,
         Need::VALUES,
         &mut ws.fw,
-        &mut ws.phi_a,
+        &mut ws.phi_feed,
     )?;
     for i in 0..nc {
+        ws.lnz[i] = if ws.sz[i] > 0.0 { ws.sz[i].ln() } else { 0.0 };
         ws.d[i] = if ws.sz[i] > 0.0 {
-            ws.sz[i].ln() + ws.phi_a.ln_phi[i]
+            ws.lnz[i] + ws.phi_feed.ln_phi[i]
         } else {
             f64::NEG_INFINITY
         };
@@ -338,12 +339,13 @@ fn run_trial<M: FluidModel + ?Sized>(
         let (mut err, mut tm, mut sw, mut bt) = (0.0f64, 1.0, 0.0, 0.0);
         for i in 0..nc {
             if ws.sz[i] > 0.0 {
-                let h = ws.w[i].ln() + ws.phi_b.ln_phi[i] - ws.d[i];
+                let lw = ws.w[i].ln();
+                let h = lw + ws.phi_b.ln_phi[i] - ws.d[i];
                 ws.g[i] = h;
                 err = err.max(h.abs());
                 tm += ws.w[i] * (h - 1.0);
                 sw += ws.w[i];
-                bt += (ws.w[i] - ws.sz[i]) * (ws.w[i].ln() - ws.sz[i].ln());
+                bt += (ws.w[i] - ws.sz[i]) * (lw - ws.lnz[i]);
             } else {
                 ws.g[i] = 0.0;
             }

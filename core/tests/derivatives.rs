@@ -210,3 +210,48 @@ fn volume_shift_leaves_k_values_unchanged() {
     let c: f64 = n.iter().zip(m1.volume_shift()).map(|(a, b)| a * b).sum();
     assert!((b.v - (a.v - c)).abs() < 1e-12 * a.v);
 }
+
+/// A cubic model keeps its temperature-dependent mixing terms in the caller's storage, keyed
+/// by its parameter set and T. One storage reused across models, parameter changes,
+/// temperatures and derivative orders must give exactly what fresh storage gives.
+#[test]
+fn reused_storage_gives_the_fresh_results() {
+    let a = model(CubicKind::PengRobinson, false);
+    let b = a.clone().with_pair(0, 3, 0.05, 0.0).unwrap();
+    let c = CubicEos::new(CubicKind::SoaveRedlichKwong, a.components().to_vec()).unwrap();
+    let n = [0.4, 0.3, 0.1, 0.2];
+    let mut shared = HelmholtzDerivs::new(4);
+    let sequence: [(&CubicEos, f64, Need); 8] = [
+        (&a, 250.0, Need::VALUES),
+        (&a, 250.0, Need::ALL),
+        (&a, 250.0, Need::VALUES),
+        (&b, 250.0, Need::VALUES),
+        (&a, 250.0, Need::COMPOSITION),
+        (&c, 250.0, Need::ALL),
+        (&a, 300.0, Need::ALL),
+        (&b, 300.0, Need::VALUES),
+    ];
+    let v = 1e-3;
+    for (k, (m, t, need)) in sequence.into_iter().enumerate() {
+        let mut fresh = HelmholtzDerivs::new(4);
+        m.residual(t, v, &n, need, &mut shared).unwrap();
+        m.residual(t, v, &n, need, &mut fresh).unwrap();
+        assert_eq!(shared.f.to_bits(), fresh.f.to_bits(), "step {k}: F");
+        assert_eq!(shared.f_n, fresh.f_n, "step {k}: F_n");
+        if need.temperature {
+            assert_eq!(shared.f_t.to_bits(), fresh.f_t.to_bits(), "step {k}: F_T");
+            assert_eq!(shared.f_nt, fresh.f_nt, "step {k}: F_nT");
+        }
+        if need.composition {
+            assert_eq!(shared.f_nn, fresh.f_nn, "step {k}: F_nn");
+        }
+        let roots_shared = m.volume_roots(t, 5e6, &n, &mut shared).unwrap();
+        let roots_fresh = m.volume_roots(t, 5e6, &n, &mut HelmholtzDerivs::new(4)).unwrap();
+        assert_eq!(roots_shared, roots_fresh, "step {k}: volume roots");
+    }
+    // The modified model differs from its original (so the checks above could fail).
+    let (mut da, mut db) = (HelmholtzDerivs::new(4), HelmholtzDerivs::new(4));
+    a.residual(250.0, v, &n, Need::VALUES, &mut da).unwrap();
+    b.residual(250.0, v, &n, Need::VALUES, &mut db).unwrap();
+    assert_ne!(da.f, db.f);
+}

@@ -16,11 +16,12 @@
 //! G. Soave, Chem. Eng. Sci. 27 (1972) 1197–1203; A. Péneloux, E. Rauzy, R. Fréze, Fluid
 //! Phase Equilib. 8 (1982) 7–23.
 
-use super::{CriticalConstants, FluidModel, HelmholtzDerivs, Need, VolumeRoots};
+use super::{CriticalConstants, FluidModel, HelmholtzDerivs, MixCache, Need, VolumeRoots};
 use crate::error::{Error, Result, check};
 use crate::numerics::roots::cubic_real_roots;
 use crate::substance::{Component, IdealGasSpecies, R};
 use serde::{Deserialize, Serialize};
+use std::sync::atomic::{AtomicU64, Ordering};
 
 /// Which cubic equation of state.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize)]
@@ -161,6 +162,45 @@ pub struct CubicSpec {
     pub volume_shift: Option<Vec<f64>>,
 }
 
+/// A process-unique identity of a cubic model's parameter set: the key of the
+/// per-temperature terms it caches in the caller's [`HelmholtzDerivs`], renewed whenever a
+/// parameter changes, so a cache is never read for another parameter set. Ignored by `==`.
+#[derive(Debug, Clone, Copy)]
+struct ParamId(u64);
+
+impl ParamId {
+    fn fresh() -> Self {
+        static NEXT: AtomicU64 = AtomicU64::new(1);
+        ParamId(NEXT.fetch_add(1, Ordering::Relaxed))
+    }
+}
+
+impl PartialEq for ParamId {
+    fn eq(&self, _: &Self) -> bool {
+        true
+    }
+}
+
+/// Σ_j a_j b_j with four partial sums (so that the compiler can vectorise it).
+#[inline]
+fn dot(a: &[f64], b: &[f64]) -> f64 {
+    let n = a.len().min(b.len());
+    let (a, b) = (&a[..n], &b[..n]);
+    let mut acc = [0.0f64; 4];
+    let mut ca = a.chunks_exact(4);
+    let mut cb = b.chunks_exact(4);
+    for (x, y) in (&mut ca).zip(&mut cb) {
+        for k in 0..4 {
+            acc[k] += x[k] * y[k];
+        }
+    }
+    let mut tail = 0.0;
+    for (x, y) in ca.remainder().iter().zip(cb.remainder()) {
+        tail += x * y;
+    }
+    (acc[0] + acc[1]) + (acc[2] + acc[3]) + tail
+}
+
 /// A cubic equation of state for a mixture, ready to evaluate. Immutable and `Send + Sync`.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(try_from = "CubicSpec", into = "CubicSpec")]
@@ -177,6 +217,7 @@ pub struct CubicEos {
     d1: f64,
     d2: f64,
     has_k1: bool,
+    id: ParamId,
 }
 
 impl TryFrom<CubicSpec> for CubicEos {
@@ -230,6 +271,7 @@ impl CubicEos {
             d1,
             d2,
             has_k1: false,
+            id: ParamId::fresh(),
         })
     }
 
@@ -248,6 +290,7 @@ impl CubicEos {
         kij.validate()?;
         self.has_k1 = kij.k1.iter().any(|&k| k != 0.0);
         self.kij = kij;
+        self.id = ParamId::fresh();
         Ok(self)
     }
 
@@ -255,6 +298,7 @@ impl CubicEos {
     pub fn with_pair(mut self, i: usize, j: usize, k0: f64, k1: f64) -> Result<Self> {
         self.kij.set(i, j, k0, k1)?;
         self.has_k1 = self.kij.k1.iter().any(|&k| k != 0.0);
+        self.id = ParamId::fresh();
         Ok(self)
     }
 
@@ -280,6 +324,7 @@ impl CubicEos {
         }
         self.has_shift = c.iter().any(|&x| x != 0.0);
         self.shift = c;
+        self.id = ParamId::fresh();
         Ok(self)
     }
 
@@ -358,9 +403,51 @@ impl CubicEos {
         Ok(())
     }
 
+    /// The cross terms a_ij = (1 − k_ij(T)) √a_i √a_j at T into `cache` (row-major nc×nc),
+    /// followed, if `deriv`, by ∂a_ij/∂T and ∂²a_ij/∂T²; kept while the model and T repeat.
+    fn cross_terms<'c>(
+        &self,
+        t: f64,
+        deriv: bool,
+        scratch: &mut Vec<f64>,
+        cache: &'c mut MixCache,
+    ) -> Result<&'c [f64]> {
+        let nc = self.b.len();
+        let nn = nc * nc;
+        let fresh = matches!(cache.key, Some((id, tb, d)) if id == self.id.0 && tb == t.to_bits() && (d || !deriv));
+        if !fresh {
+            cache.key = None;
+            if scratch.len() < 3 * nc {
+                scratch.resize(3 * nc, 0.0);
+            }
+            self.sqrt_a(t, deriv, scratch)?;
+            let (r, rest) = scratch.split_at(nc);
+            let (r1, r2) = rest.split_at(nc);
+            cache.a.resize(if deriv { 3 * nn } else { nn }, 0.0);
+            let a = &mut cache.a;
+            for i in 0..nc {
+                for j in 0..nc {
+                    let idx = i * nc + j;
+                    let k1 = if self.has_k1 { self.kij.k1[idx] } else { 0.0 };
+                    let omk = 1.0 - (self.kij.k0[idx] + k1 * t);
+                    let q = r[i] * r[j];
+                    a[idx] = omk * q;
+                    if deriv {
+                        let q1 = r1[i] * r[j] + r[i] * r1[j];
+                        let q2 = r2[i] * r[j] + 2.0 * r1[i] * r1[j] + r[i] * r2[j];
+                        a[nn + idx] = omk * q1 - k1 * q;
+                        a[2 * nn + idx] = omk * q2 - 2.0 * k1 * q1;
+                    }
+                }
+            }
+            cache.key = Some((self.id.0, t.to_bits(), deriv));
+        }
+        Ok(&cache.a)
+    }
+
     /// D = ΣΣ n_i n_j a_ij and B = Σ n_i b_i, with D_i = 2Σ_j n_j a_ij written into `di`
     /// (and, if `deriv`, D_T, D_TT, D_iT into `dit`, and if `hess`, D_ij = 2 a_ij into `dij`).
-    #[allow(clippy::type_complexity)]
+    #[allow(clippy::type_complexity, clippy::too_many_arguments)]
     fn mix(
         &self,
         t: f64,
@@ -368,49 +455,34 @@ impl CubicEos {
         deriv: bool,
         hess: Option<&mut [f64]>,
         scratch: &mut Vec<f64>,
+        cache: &mut MixCache,
         di: &mut [f64],
         dit: &mut [f64],
     ) -> Result<(f64, f64, f64, f64)> {
         let nc = self.b.len();
-        if scratch.len() < 3 * nc {
-            scratch.resize(3 * nc, 0.0);
-        }
-        self.sqrt_a(t, deriv, scratch)?;
-        let (r, rest) = scratch.split_at(nc);
-        let (r1, r2) = rest.split_at(nc);
+        let nn = nc * nc;
+        let a = self.cross_terms(t, deriv, scratch, cache)?;
+        let n = &n[..nc];
         let mut d = 0.0;
         let mut dt = 0.0;
         let mut dtt = 0.0;
-        let mut bsum = 0.0;
-        let mut hess = hess;
+        let bsum = dot(n, &self.b);
         for i in 0..nc {
-            bsum += n[i] * self.b[i];
-            let mut si = 0.0;
-            let mut sit = 0.0;
-            let mut sitt = 0.0;
-            for j in 0..nc {
-                let idx = i * nc + j;
-                let kij = self.kij.k0[idx] + if self.has_k1 { self.kij.k1[idx] * t } else { 0.0 };
-                let q = r[i] * r[j];
-                let aij = (1.0 - kij) * q;
-                si += n[j] * aij;
-                if let Some(h) = hess.as_deref_mut() {
-                    h[idx] = 2.0 * aij;
-                }
-                if deriv {
-                    let q1 = r1[i] * r[j] + r[i] * r1[j];
-                    let q2 = r2[i] * r[j] + 2.0 * r1[i] * r1[j] + r[i] * r2[j];
-                    let k1 = if self.has_k1 { self.kij.k1[idx] } else { 0.0 };
-                    sit += n[j] * ((1.0 - kij) * q1 - k1 * q);
-                    sitt += n[j] * ((1.0 - kij) * q2 - 2.0 * k1 * q1);
-                }
-            }
+            let row = i * nc..(i + 1) * nc;
+            let si = dot(&a[row.clone()], n);
             di[i] = 2.0 * si;
             d += n[i] * si;
             if deriv {
+                let sit = dot(&a[nn + row.start..nn + row.end], n);
+                let sitt = dot(&a[2 * nn + row.start..2 * nn + row.end], n);
                 dit[i] = 2.0 * sit;
                 dt += n[i] * sit;
                 dtt += n[i] * sitt;
+            }
+        }
+        if let Some(h) = hess {
+            for (hij, aij) in h[..nn].iter_mut().zip(&a[..nn]) {
+                *hij = 2.0 * aij;
             }
         }
         Ok((d, dt, dtt, bsum))
@@ -499,11 +571,12 @@ impl FluidModel for CubicEos {
             f_nt,
             f_nn,
             scratch,
+            mix_cache,
             ..
         } = out;
         // D_i into f_n, D_iT into f_nt temporarily; D_ij into f_nn.
         let hess = if need.composition { Some(&mut f_nn[..]) } else { None };
-        let (d, d_t, d_tt, bm) = self.mix(t, n, need.temperature, hess, scratch, f_n, f_nt)?;
+        let (d, d_t, d_tt, bm) = self.mix(t, n, need.temperature, hess, scratch, mix_cache, f_n, f_nt)?;
         let c: f64 = if self.has_shift {
             n.iter().zip(&self.shift).map(|(a, b)| a * b).sum()
         } else {
@@ -607,8 +680,14 @@ impl FluidModel for CubicEos {
         check::pressure(p)?;
         let ntot = check::amounts(n, nc)?;
         work.resize(nc);
-        let HelmholtzDerivs { f_n, f_nt, scratch, .. } = work;
-        let (d, _, _, bm) = self.mix(t, n, false, None, scratch, f_n, f_nt)?;
+        let HelmholtzDerivs {
+            f_n,
+            f_nt,
+            scratch,
+            mix_cache,
+            ..
+        } = work;
+        let (d, _, _, bm) = self.mix(t, n, false, None, scratch, mix_cache, f_n, f_nt)?;
         let rt = R * t;
         let a = d / (ntot * ntot) * p / (rt * rt);
         let b = bm / ntot * p / rt;

@@ -54,6 +54,17 @@ pub struct HelmholtzDerivs {
     /// Scratch storage owned by the caller and free for the model to use, so that
     /// evaluations allocate nothing after the first.
     pub scratch: Vec<f64>,
+    /// Temperature-dependent mixing terms of the last cubic model evaluated with this
+    /// storage (written and read only by that model, keyed by its identity and T).
+    pub(crate) mix_cache: MixCache,
+}
+
+/// The cross terms a_ij(T) of a cubic model at one temperature (and their T-derivatives),
+/// with the key they were computed for: (model identity, T bits, derivatives included).
+#[derive(Debug, Clone, Default)]
+pub(crate) struct MixCache {
+    pub(crate) key: Option<(u64, u64, bool)>,
+    pub(crate) a: Vec<f64>,
 }
 
 impl HelmholtzDerivs {

@@ -11,6 +11,10 @@ Build a :class:`Model` from component names, flash it at a temperature (K) and p
 Every function also takes numpy arrays (broadcast together) and then computes in parallel
 with the GIL released. Units are SI throughout: K, Pa, mol, m3, J.
 
+Water is :meth:`Model.water` (IAPWS-95): every function takes it, and
+:func:`water_properties` and :func:`water_saturation` give its states per kg in the
+IAPWS-95 reference state.
+
 Caution: tieline is an aid to engineering judgement, not a substitute for it. Respect the
 validity ranges of every model and correlation.
 """
@@ -30,6 +34,8 @@ from ._api import (
     saturation_temperature,
     set_threads,
     stability,
+    water_properties,
+    water_saturation,
 )
 from ._errors import (
     ConvergenceError,
@@ -54,6 +60,8 @@ from ._results import (
     StabilityResult,
     StationaryPoint,
     TieLine,
+    WaterProperties,
+    WaterSaturation,
 )
 
 __all__ = [
@@ -70,6 +78,8 @@ __all__ = [
     "bubble_temperature",
     "dew_temperature",
     "phase_properties",
+    "water_properties",
+    "water_saturation",
     "set_threads",
     "get_threads",
     "FlashResult",
@@ -85,6 +95,8 @@ __all__ = [
     "BubbleDewCurve",
     "Properties",
     "PropertyTable",
+    "WaterProperties",
+    "WaterSaturation",
     "TielineError",
     "InvalidInputError",
     "UnknownComponentError",

@@ -28,6 +28,8 @@ from ._results import (
     SaturationCurve,
     SaturationPoint,
     StabilityResult,
+    WaterProperties,
+    WaterSaturation,
 )
 
 __all__ = [
@@ -40,6 +42,8 @@ __all__ = [
     "bubble_temperature",
     "dew_temperature",
     "phase_properties",
+    "water_properties",
+    "water_saturation",
     "set_threads",
     "get_threads",
 ]
@@ -614,6 +618,65 @@ def phase_properties(
         failures=_failures(raw["failures"], shape),
         **{n: raw[n].reshape(shape) for n in _PROPERTY_NAMES},
     )
+
+
+# ---------------------------------------------------------------------------------------------
+# Water by IAPWS-95 in its own terms
+
+
+def water_properties(
+    temperature: float,
+    *,
+    density: Optional[float] = None,
+    pressure: Optional[float] = None,
+    root: str = "stable",
+) -> WaterProperties:
+    """Properties of water by IAPWS-95 (IAPWS R6-95(2018)) per kg, in the IAPWS-95 reference
+    state, at ``temperature`` (K) and either ``density`` (kg/m3) or ``pressure`` (Pa).
+
+    With a pressure, ``root`` chooses the density root: ``"stable"`` (least Gibbs energy),
+    ``"liquid"`` or ``"vapor"`` (stable or metastable branch). The same states per mol in the
+    library's reference state come from :func:`phase_properties` with :meth:`Model.water`.
+
+    Raises
+    ------
+    InvalidInputError
+        Both or neither of density and pressure; non-finite or non-positive values.
+    OutsideValidityError
+        Outside the range of the formulation (130–1273.15 K; liquid-like states from 200 K;
+        up to 1000 MPa and 1400 kg/m3).
+    NoSolutionError
+        No density root of the requested kind at (T, p), or the critical point itself.
+    """
+    if (density is None) == (pressure is None):
+        raise _invalid("density, pressure", "exactly one of density (kg/m3) or pressure (Pa) is required")
+    t = _scalar(temperature, "temperature")
+    if density is not None:
+        return _core.water_state(t, "density", _scalar(density, "density"))
+    return _core.water_state(t, "pressure", _scalar(pressure, "pressure"), root)
+
+
+def water_saturation(
+    *, temperature: Optional[float] = None, pressure: Optional[float] = None
+) -> WaterSaturation:
+    """The vapour–liquid saturation state of water by IAPWS-95 at ``temperature`` (K,
+    273.16 K ≤ T < 647.096 K) or ``pressure`` (Pa, 611.655 Pa ≤ p < 22.064 MPa), with both
+    phases per kg in the IAPWS-95 reference state.
+
+    Raises
+    ------
+    InvalidInputError
+        Both or neither of temperature and pressure given; bad values.
+    OutsideValidityError
+        Below the triple point.
+    NoSolutionError
+        At or above the critical point.
+    """
+    if (temperature is None) == (pressure is None):
+        raise _invalid("temperature, pressure", "exactly one of temperature (K) or pressure (Pa) is required")
+    if temperature is not None:
+        return _core.water_saturation_point("temperature", _scalar(temperature, "temperature"))
+    return _core.water_saturation_point("pressure", _scalar(pressure, "pressure"))
 
 
 def set_threads(n: int) -> None:

@@ -6,7 +6,15 @@ from typing import Any, Callable, Dict, List, Mapping, Optional, Sequence, Tuple
 import numpy as np
 import numpy.typing as npt
 
-from ._results import BubbleDewPoint, FlashResult, Properties, SaturationPoint, StabilityResult
+from ._results import (
+    BubbleDewPoint,
+    FlashResult,
+    Properties,
+    SaturationPoint,
+    StabilityResult,
+    WaterProperties,
+    WaterSaturation,
+)
 
 __version__: str
 
@@ -32,7 +40,8 @@ class ComponentBank:
 
 @final
 class Model:
-    """A thermodynamic model of a fluid mixture (immutable; shared freely between threads)."""
+    """A thermodynamic model of a fluid mixture, or of water by IAPWS-95 (immutable; shared
+    freely between threads)."""
 
     def __new__(
         cls,
@@ -42,6 +51,8 @@ class Model:
         volume_shift: Optional[Union[str, Sequence[float]]] = None,
         bank: Optional[ComponentBank] = None,
     ) -> Model: ...
+    @staticmethod
+    def water() -> Model: ...
     @classmethod
     def from_json(cls, text: str, bank: Optional[ComponentBank] = None) -> Model: ...
     @classmethod
@@ -188,5 +199,7 @@ def properties_sweep(
     threads: Optional[int] = None,
     raise_errors: bool = True,
 ) -> Dict[str, Any]: ...
+def water_state(temperature: float, by: str, value: float, root: str = "stable") -> WaterProperties: ...
+def water_saturation_point(by: str, value: float) -> WaterSaturation: ...
 def set_threads(n: int) -> None: ...
 def get_threads() -> int: ...

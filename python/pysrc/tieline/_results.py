@@ -32,6 +32,8 @@ __all__ = [
     "SaturationCurve",
     "BubbleDewCurve",
     "PropertyTable",
+    "WaterProperties",
+    "WaterSaturation",
 ]
 
 
@@ -753,3 +755,89 @@ class PropertyTable(_Record):
         cols: Dict[str, Any] = {n: getattr(self, n).ravel() for n in names}
         cols.update(_frame_columns(self.components, "fugacity_", self.fugacity))
         return pd.DataFrame(cols)
+
+
+# ---------------------------------------------------------------------------------------------
+# Water by IAPWS-95 in its own terms
+
+
+@dataclass(frozen=True, eq=False)
+class WaterProperties(_Record):
+    """Properties of water at one state by IAPWS-95, **per kg** in the IAPWS-95 reference
+    state (saturated liquid at the triple point has u = 0 and s = 0), as the IAPWS release
+    tabulates them. (:func:`phase_properties` gives the same states per mol in the library's
+    reference state.)
+
+    Attributes
+    ----------
+    temperature : float
+        K.
+    density : float
+        Mass density, kg/m3.
+    pressure : float
+        Pa.
+    internal_energy, enthalpy, gibbs, helmholtz : float
+        J/kg.
+    entropy, cv, cp : float
+        J/(kg K).
+    speed_of_sound : float
+        m/s.
+    joule_thomson : float
+        (∂T/∂p)_h, K/Pa.
+    isothermal_compressibility : float
+        1/Pa.
+    thermal_expansion : float
+        1/K.
+    """
+
+    temperature: float
+    density: float
+    pressure: float
+    internal_energy: float
+    enthalpy: float
+    entropy: float
+    gibbs: float
+    helmholtz: float
+    cv: float
+    cp: float
+    speed_of_sound: float
+    joule_thomson: float
+    isothermal_compressibility: float
+    thermal_expansion: float
+
+
+@dataclass(frozen=True, eq=False)
+class WaterSaturation(_Record):
+    """A vapour–liquid saturation state of water by IAPWS-95, both phases per kg.
+
+    Attributes
+    ----------
+    temperature : float
+        K.
+    pressure : float
+        Vapour pressure, Pa.
+    liquid, vapor : WaterProperties
+        The saturated liquid and vapour (per kg, IAPWS-95 reference state).
+    iterations : int
+        Newton iterations of the phase-equilibrium solve.
+    residual : float
+        Final residual of the equal-pressure and equal-Gibbs-energy conditions
+        (dimensionless).
+    """
+
+    temperature: float
+    pressure: float
+    liquid: WaterProperties
+    vapor: WaterProperties
+    iterations: int
+    residual: float
+
+    @property
+    def enthalpy_of_vaporization(self) -> float:
+        """h'' − h', J/kg."""
+        return self.vapor.enthalpy - self.liquid.enthalpy
+
+    @property
+    def clapeyron_slope(self) -> float:
+        """dp/dT = (s'' − s')/(v'' − v') along the saturation curve, Pa/K."""
+        return (self.vapor.entropy - self.liquid.entropy) / (1.0 / self.vapor.density - 1.0 / self.liquid.density)

@@ -8,7 +8,9 @@
 
 mod errors;
 mod parallel;
+mod pure;
 mod records;
+mod solids;
 mod sweeps;
 mod water;
 
@@ -412,6 +414,24 @@ pub(crate) fn model_index(py: Python<'_>, model: &Model, name: &str) -> PyResult
     })
 }
 
+/// A component argument: an index (range-checked) or a name, alias or CAS number.
+pub(crate) fn component_arg(py: Python<'_>, model: &Model, key: &Bound<'_, PyAny>, what: &str) -> PyResult<usize> {
+    let nc = model.num_components();
+    if key.is_instance_of::<pyo3::types::PyBool>() {
+        return Err(invalid(py, what, "a bool; an index or a component name is required"));
+    }
+    if let Ok(i) = key.extract::<i64>() {
+        if i >= 0 && (i as usize) < nc {
+            return Ok(i as usize);
+        }
+        return Err(invalid(py, what, &format!("index {i} for a model of {nc} components")));
+    }
+    match key.extract::<String>() {
+        Ok(s) => model_index(py, model, &s),
+        Err(_) => Err(invalid(py, what, "an index or a component name is required")),
+    }
+}
+
 #[pymethods]
 impl PyModel {
     #[new]
@@ -741,6 +761,15 @@ pub(crate) fn bubble_dew_solver(py: Python<'_>, which: &str) -> PyResult<BubbleD
             ));
         }
     })
+}
+
+/// A real number from a Python object (int, float or numpy scalar; not a bool).
+pub(crate) fn real(py: Python<'_>, x: &Bound<'_, PyAny>, what: &str) -> PyResult<f64> {
+    if x.is_instance_of::<pyo3::types::PyBool>() || x.is_instance_of::<pyo3::types::PyString>() {
+        return Err(invalid(py, what, &format!("{x}; a number is required")));
+    }
+    x.extract::<f64>()
+        .map_err(|_| invalid(py, what, &format!("{x}; a number is required")))
 }
 
 pub(crate) fn amounts_slice<'a>(py: Python<'_>, a: &'a PyReadonlyArray1<'_, f64>) -> PyResult<&'a [f64]> {
@@ -1082,6 +1111,7 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<PyModel>()?;
     m.add_class::<PyFlashOptions>()?;
     m.add_class::<PyPhaseState>()?;
+    m.add_class::<solids::PySolid>()?;
     m.add_function(wrap_pyfunction!(_bank_from_json, m)?)?;
     m.add_function(wrap_pyfunction!(_model_from_json, m)?)?;
     m.add_function(wrap_pyfunction!(_state_from_json, m)?)?;
@@ -1094,6 +1124,19 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(sweeps::saturation_sweep, m)?)?;
     m.add_function(wrap_pyfunction!(sweeps::bubble_dew_sweep, m)?)?;
     m.add_function(wrap_pyfunction!(sweeps::properties_sweep, m)?)?;
+    m.add_function(wrap_pyfunction!(solids::_solid_from_json, m)?)?;
+    m.add_function(wrap_pyfunction!(solids::_solid_point, m)?)?;
+    m.add_function(wrap_pyfunction!(solids::_solid_sweep, m)?)?;
+    m.add_function(wrap_pyfunction!(solids::solid_flash_point, m)?)?;
+    m.add_function(wrap_pyfunction!(solids::frost_point, m)?)?;
+    m.add_function(wrap_pyfunction!(pure::pure_phases, m)?)?;
+    m.add_function(wrap_pyfunction!(pure::pure_evaluate, m)?)?;
+    m.add_function(wrap_pyfunction!(pure::pure_stable_phase, m)?)?;
+    m.add_function(wrap_pyfunction!(pure::pure_stable_sweep, m)?)?;
+    m.add_function(wrap_pyfunction!(pure::pure_coexistence, m)?)?;
+    m.add_function(wrap_pyfunction!(pure::pure_trace, m)?)?;
+    m.add_function(wrap_pyfunction!(pure::pure_triple_point, m)?)?;
+    m.add_function(wrap_pyfunction!(pure::pure_gibbs_curves, m)?)?;
     m.add_function(wrap_pyfunction!(water::water_state, m)?)?;
     m.add_function(wrap_pyfunction!(water::water_saturation_point, m)?)?;
     m.add_function(wrap_pyfunction!(set_threads, m)?)?;

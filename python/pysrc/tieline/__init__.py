@@ -11,9 +11,11 @@ Build a :class:`Model` from component names, flash it at a temperature (K) and p
 Every function also takes numpy arrays (broadcast together) and then computes in parallel
 with the GIL released. Units are SI throughout: K, Pa, mol, m3, J.
 
-Water is :meth:`Model.water` (IAPWS-95): every function takes it, and
-:func:`water_properties` and :func:`water_saturation` give its states per kg in the
-IAPWS-95 reference state.
+Water is :meth:`Model.water` (IAPWS-95); solids are :class:`Solid` (ice Ih by IAPWS-06, dry
+ice from fusion data); :class:`PureSubstance` gives the stable phase, melting, boiling and
+sublimation curves, triple points and Gibbs-energy curves of one substance over its fluid and
+solid phases; :func:`flash_with_solids` and :func:`frost_point_temperature` handle freeze-out
+from mixtures.
 
 Caution: tieline is an aid to engineering judgement, not a substitute for it. Respect the
 validity ranges of every model and correlation.
@@ -21,13 +23,15 @@ validity ranges of every model and correlation.
 
 from __future__ import annotations
 
-from ._core import ComponentBank, Model, PhaseState, __version__
+from ._core import ComponentBank, Model, PhaseState, Solid, __version__
 from ._api import (
     bubble_pressure,
     bubble_temperature,
     dew_pressure,
     dew_temperature,
     flash,
+    flash_with_solids,
+    frost_point_temperature,
     get_threads,
     phase_properties,
     saturation_pressure,
@@ -37,6 +41,7 @@ from ._api import (
     water_properties,
     water_saturation,
 )
+from ._pure import PureSubstance
 from ._errors import (
     ConvergenceError,
     DataError,
@@ -49,17 +54,32 @@ from ._errors import (
 from ._results import (
     BubbleDewCurve,
     BubbleDewPoint,
+    Coexistence,
+    CoexistenceCurve,
+    Crossing,
     FlashDiagnostics,
     FlashResult,
     FlashSweep,
+    GibbsCurves,
+    IceProperties,
     Phase,
+    PhasePoint,
     Properties,
     PropertyTable,
     SaturationCurve,
     SaturationPoint,
+    SolidFlashDiagnostics,
+    SolidFlashResult,
+    SolidMargin,
+    SolidPhase,
+    SolidProperties,
+    SolidPropertyTable,
     StabilityResult,
+    StablePhase,
+    StablePhaseMap,
     StationaryPoint,
     TieLine,
+    TriplePoint,
     WaterProperties,
     WaterSaturation,
 )
@@ -69,6 +89,8 @@ __all__ = [
     "Model",
     "ComponentBank",
     "PhaseState",
+    "Solid",
+    "PureSubstance",
     "flash",
     "stability",
     "saturation_pressure",
@@ -78,6 +100,8 @@ __all__ = [
     "bubble_temperature",
     "dew_temperature",
     "phase_properties",
+    "flash_with_solids",
+    "frost_point_temperature",
     "water_properties",
     "water_saturation",
     "set_threads",
@@ -97,6 +121,21 @@ __all__ = [
     "PropertyTable",
     "WaterProperties",
     "WaterSaturation",
+    "SolidProperties",
+    "SolidPropertyTable",
+    "IceProperties",
+    "PhasePoint",
+    "StablePhase",
+    "StablePhaseMap",
+    "Coexistence",
+    "CoexistenceCurve",
+    "TriplePoint",
+    "Crossing",
+    "GibbsCurves",
+    "SolidFlashResult",
+    "SolidPhase",
+    "SolidMargin",
+    "SolidFlashDiagnostics",
     "TielineError",
     "InvalidInputError",
     "UnknownComponentError",

@@ -90,6 +90,11 @@ impl Set {
     fn ns(&self) -> usize {
         self.solids.len()
     }
+
+    /// The two phases of a coexistence call.
+    fn pair(&self, py: Python<'_>, a: &str, b: &str) -> PyResult<(PurePhase, PurePhase)> {
+        Ok((parse(py, a, self.ns(), "phases")?, parse(py, b, self.ns(), "phases")?))
+    }
 }
 
 fn point<'py>(py: Python<'py>, p: &PhasePoint, ns: usize) -> PyResult<Bound<'py, PyAny>> {
@@ -272,8 +277,7 @@ pub fn pure_coexistence<'py>(
 ) -> PyResult<Bound<'py, PyAny>> {
     let set = Set::new(&model, component, &solids);
     let ph = set.phases(py)?;
-    let a = parse(py, phase_a, set.ns(), "phases")?;
-    let b = parse(py, phase_b, set.ns(), "phases")?;
+    let (a, b) = set.pair(py, phase_a, phase_b)?;
     let at_t = by_temperature(py, by)?;
     let r = py.detach(|| {
         if at_t {
@@ -303,8 +307,7 @@ pub fn pure_trace<'py>(
 ) -> PyResult<Bound<'py, PyDict>> {
     let set = Set::new(&model, component, &solids);
     let ph = set.phases(py)?;
-    let a = parse(py, phase_a, set.ns(), "phases")?;
-    let b = parse(py, phase_b, set.ns(), "phases")?;
+    let (a, b) = set.pair(py, phase_a, phase_b)?;
     let at_t = by_temperature(py, by)?;
     let xs = slice(py, &values, by)?;
     if xs.is_empty() {

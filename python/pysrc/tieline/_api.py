@@ -651,6 +651,19 @@ def _check_solid(solid: Any) -> Solid:
     return solid
 
 
+def _broadcast_tp(temperature: ArrayLike, pressure: ArrayLike) -> Tuple[Tuple[int, ...], np.ndarray, np.ndarray]:
+    """Temperatures (K) and pressures (Pa) broadcast together: the shape and both flattened."""
+    t = _array(temperature, "temperature")
+    p = _array(pressure, "pressure")
+    try:
+        shape = np.broadcast_shapes(t.shape, p.shape)
+    except ValueError:
+        raise _invalid("shapes", f"temperature {t.shape} and pressure {p.shape} do not broadcast together") from None
+    tf = np.ascontiguousarray(np.broadcast_to(t, shape), dtype=np.float64).reshape(-1)
+    pf = np.ascontiguousarray(np.broadcast_to(p, shape), dtype=np.float64).reshape(-1)
+    return shape, tf, pf
+
+
 def _solid_properties(
     solid: Solid, temperature: ArrayLike, pressure: ArrayLike, on_error: str = "raise"
 ) -> Union[SolidProperties, SolidPropertyTable]:
@@ -659,14 +672,7 @@ def _solid_properties(
     if _is_scalar(temperature) and _is_scalar(pressure):
         return _core._solid_point(solid, _scalar(temperature, "temperature"), _scalar(pressure, "pressure"))
     raise_errors = _on_error(on_error)
-    t = _array(temperature, "temperature")
-    p = _array(pressure, "pressure")
-    try:
-        shape = np.broadcast_shapes(t.shape, p.shape)
-    except ValueError:
-        raise _invalid("shapes", f"temperature {t.shape} and pressure {p.shape} do not broadcast together") from None
-    tf = np.ascontiguousarray(np.broadcast_to(t, shape)).reshape(-1)
-    pf = np.ascontiguousarray(np.broadcast_to(p, shape)).reshape(-1)
+    shape, tf, pf = _broadcast_tp(temperature, pressure)
     raw = _core._solid_sweep(solid, tf, pf, raise_errors)
     return SolidPropertyTable(
         species=solid.species,

@@ -15,6 +15,7 @@ from numpy.typing import ArrayLike
 from . import _core
 from ._api import (
     _array,
+    _broadcast_tp,
     _check_model,
     _check_threads,
     _component,
@@ -195,14 +196,7 @@ class PureSubstance:
                 *self._args(), _scalar(temperature, "temperature"), _scalar(pressure, "pressure")
             )
         raise_errors = _on_error(on_error)
-        t = _array(temperature, "temperature")
-        p = _array(pressure, "pressure")
-        try:
-            shape = np.broadcast_shapes(t.shape, p.shape)
-        except ValueError:
-            raise _invalid("shapes", f"temperature {t.shape} and pressure {p.shape} do not broadcast together") from None
-        tf = np.ascontiguousarray(np.broadcast_to(t, shape)).reshape(-1)
-        pf = np.ascontiguousarray(np.broadcast_to(p, shape)).reshape(-1)
+        shape, tf, pf = _broadcast_tp(temperature, pressure)
         raw = _core.pure_stable_sweep(*self._args(), tf, pf, _check_threads(threads), raise_errors)
         names = np.array(self._phases + ("",))
         return StablePhaseMap(
@@ -316,20 +310,7 @@ class PureSubstance:
         InvalidInputError
             A grid of fewer than two or not strictly ascending values; bad p.
         """
-        p = _scalar(pressure, "pressure")
-        t = _array(temperatures, "temperatures")
-        if t.ndim != 1:
-            raise _invalid("temperatures", f"shape {t.shape}; a 1-D array is required")
-        raw = _core.pure_gibbs_curves(*self._args(), "temperature", p, np.ascontiguousarray(t))
-        grid = raw["grid"]
-        return GibbsCurves(
-            along="temperature",
-            temperature=grid,
-            pressure=np.full(grid.shape, p),
-            phases=tuple(raw["phases"]),
-            gibbs=raw["gibbs"],
-            crossings=tuple(raw["crossings"]),
-        )
+        return self._curves("temperature", _scalar(pressure, "pressure"), temperatures, "temperatures")
 
     def gibbs_curves_isothermal(self, temperature: float, pressures: ArrayLike) -> GibbsCurves:
         """Molar Gibbs energies g(p) (J/mol) of every phase at ``temperature`` (K) on the grid
@@ -341,18 +322,20 @@ class PureSubstance:
         InvalidInputError
             A grid of fewer than two or not strictly ascending values; bad T.
         """
-        t = _scalar(temperature, "temperature")
-        p = _array(pressures, "pressures")
-        if p.ndim != 1:
-            raise _invalid("pressures", f"shape {p.shape}; a 1-D array is required")
-        raw = _core.pure_gibbs_curves(*self._args(), "pressure", t, np.ascontiguousarray(p))
-        grid = raw["grid"]
+        return self._curves("pressure", _scalar(temperature, "temperature"), pressures, "pressures")
+
+    def _curves(self, along: str, fixed: float, grid: ArrayLike, what: str) -> GibbsCurves:
+        x = _array(grid, what)
+        if x.ndim != 1:
+            raise _invalid(what, f"shape {x.shape}; a 1-D array is required")
+        raw = _core.pure_gibbs_curves(*self._args(), along, fixed, np.ascontiguousarray(x))
+        g = raw["grid"]
+        constant = np.full(g.shape, fixed)
         return GibbsCurves(
-            along="pressure",
-            temperature=np.full(grid.shape, t),
-            pressure=grid,
+            along=along,
+            temperature=g if along == "temperature" else constant,
+            pressure=constant if along == "temperature" else g,
             phases=tuple(raw["phases"]),
             gibbs=raw["gibbs"],
             crossings=tuple(raw["crossings"]),
         )
-

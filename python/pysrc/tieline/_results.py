@@ -79,6 +79,13 @@ def _pandas() -> Any:
     return pandas
 
 
+def _array_frame(record: Any, skip: Tuple[str, ...]) -> "pandas.DataFrame":
+    """One row per point, one column per array attribute of ``record`` not in ``skip``."""
+    pd = _pandas()
+    names = [f.name for f in dataclasses.fields(record) if f.name not in skip]
+    return pd.DataFrame({n: getattr(record, n).ravel() for n in names})
+
+
 class _Record:
     """Common behaviour of the result records."""
 
@@ -650,9 +657,7 @@ class SaturationCurve(_Record):
 
     def to_dataframe(self) -> "pandas.DataFrame":
         """One row per point, one column per array attribute (needs pandas)."""
-        pd = _pandas()
-        names = [f.name for f in dataclasses.fields(self) if f.name not in ("component", "failures")]
-        return pd.DataFrame({n: getattr(self, n).ravel() for n in names})
+        return _array_frame(self, ("component", "failures"))
 
 
 @dataclass(frozen=True, eq=False)
@@ -924,9 +929,7 @@ class SolidPropertyTable(_Record):
 
     def to_dataframe(self) -> "pandas.DataFrame":
         """One row per point, one column per array attribute (needs pandas)."""
-        pd = _pandas()
-        names = [f.name for f in dataclasses.fields(self) if f.name not in ("species", "failures")]
-        return pd.DataFrame({n: getattr(self, n).ravel() for n in names})
+        return _array_frame(self, ("species", "failures"))
 
 
 @dataclass(frozen=True, eq=False)
@@ -1063,9 +1066,7 @@ class StablePhaseMap(_Record):
 
     def to_dataframe(self) -> "pandas.DataFrame":
         """One row per point, one column per array attribute (needs pandas)."""
-        pd = _pandas()
-        names = [f.name for f in dataclasses.fields(self) if f.name not in ("phases", "failures")]
-        return pd.DataFrame({n: getattr(self, n).ravel() for n in names})
+        return _array_frame(self, ("phases", "failures"))
 
 
 @dataclass(frozen=True, eq=False)

@@ -8,8 +8,11 @@
 
 mod errors;
 mod parallel;
+mod pure;
 mod records;
+mod solids;
 mod sweeps;
+mod water;
 
 use errors::{check, invalid};
 use numpy::{PyArray1, PyReadonlyArray1};
@@ -27,7 +30,7 @@ pub struct PyBank {
     embedded: bool,
 }
 
-fn json_text<T: serde::Serialize>(v: &T) -> PyResult<String> {
+pub(crate) fn json_text<T: serde::Serialize>(v: &T) -> PyResult<String> {
     serde_json::to_string(v).map_err(|e| errors::internal(&e.to_string()))
 }
 
@@ -126,7 +129,8 @@ fn _bank_from_json(py: Python<'_>, text: &str, embedded: bool) -> PyResult<PyBan
     })
 }
 
-/// A thermodynamic model of a fluid mixture (immutable; shared freely between threads).
+/// A thermodynamic model of a fluid mixture, or of water by IAPWS-95 (immutable; shared
+/// freely between threads).
 #[pyclass(frozen, name = "Model", module = "tieline._core")]
 pub struct PyModel {
     pub(crate) inner: Arc<Model>,
@@ -142,11 +146,19 @@ fn cubic_kind(py: Python<'_>, kind: &str) -> PyResult<CubicKind> {
                 py,
                 "kind",
                 &format!(
-                    "'{kind}'; one of \"peng_robinson\", \"peng_robinson78\", \"soave_redlich_kwong\" is required"
+                    "'{kind}'; one of \"peng_robinson\", \"peng_robinson78\", \"soave_redlich_kwong\" (or \"iapws95\" for water) is required"
                 ),
             ));
         }
     })
+}
+
+/// Whether `kind` names the IAPWS-95 water model rather than a cubic equation.
+fn is_iapws95(kind: &str) -> bool {
+    matches!(
+        kind.to_ascii_lowercase().replace(['-', ' '], "_").as_str(),
+        "iapws95" | "iapws_95"
+    )
 }
 
 fn kind_name(k: CubicKind) -> &'static str {
@@ -328,12 +340,95 @@ fn component_refs(
 }
 
 impl PyModel {
-    fn eos(&self) -> &tieline::model::CubicEos {
+    /// The cubic equation of state behind the model, if it is one.
+    fn cubic(&self) -> Option<&tieline::model::CubicEos> {
         match &*self.inner {
-            Model::Cubic(m) => m,
-            #[allow(unreachable_patterns)]
-            _ => unreachable!("only cubic models exist"),
+            Model::Cubic(m) => Some(m),
+            _ => None,
         }
+    }
+
+    /// The IAPWS-95 water model from a constructor call with `kind="iapws95"`: the
+    /// components must be water alone, with no cubic parameters.
+    fn iapws95_from_args(
+        py: Python<'_>,
+        components: &Bound<'_, PyAny>,
+        kij: Option<&Bound<'_, PyAny>>,
+        volume_shift: Option<&Bound<'_, PyAny>>,
+        bank: &DataBank,
+    ) -> PyResult<Self> {
+        let (refs, names) = component_refs(py, components, bank)?;
+        let water_only = names.len() == 1 && names[0] == "water" && refs[0].is_string();
+        if !water_only {
+            return Err(invalid(
+                py,
+                "components",
+                &format!(
+                    "{names:?} for kind \"iapws95\"; IAPWS-95 describes water alone, given as [\"water\"] \
+                     (no constant overrides)"
+                ),
+            ));
+        }
+        for (what, given) in [("kij", kij.is_some()), ("volume_shift", volume_shift.is_some())] {
+            if given {
+                return Err(invalid(
+                    py,
+                    what,
+                    "IAPWS-95 has no such parameter; it belongs to the cubic equations of state",
+                ));
+            }
+        }
+        Ok(PyModel {
+            inner: Arc::new(Model::Iapws95(tieline::model::Iapws95::new())),
+        })
+    }
+}
+
+/// Index of component `name` (name, alias or CAS number) in `model`.
+pub(crate) fn model_index(py: Python<'_>, model: &Model, name: &str) -> PyResult<usize> {
+    let key = name.trim().to_lowercase();
+    let found = match model {
+        Model::Cubic(eos) => eos.components().iter().position(|c| {
+            c.name.to_lowercase() == key || c.cas == key || c.aliases.iter().any(|a| a.to_lowercase() == key)
+        }),
+        m => {
+            // A model without component records: its own names, or a bank entry of that name.
+            let canonical = DataBank::embedded().get(name).ok().map(|c| c.name.to_lowercase());
+            (0..m.num_components()).position(|i| {
+                let n = m.component_name(i).to_lowercase();
+                n == key || canonical.as_deref() == Some(n.as_str())
+            })
+        }
+    };
+    found.ok_or_else(|| {
+        errors::to_py(
+            py,
+            &tieline::Error::UnknownComponent {
+                name: name.to_string(),
+                suggestions: (0..model.num_components())
+                    .map(|i| model.component_name(i).to_string())
+                    .collect(),
+            },
+            Some("not a component of this model"),
+        )
+    })
+}
+
+/// A component argument: an index (range-checked) or a name, alias or CAS number.
+pub(crate) fn component_arg(py: Python<'_>, model: &Model, key: &Bound<'_, PyAny>, what: &str) -> PyResult<usize> {
+    let nc = model.num_components();
+    if key.is_instance_of::<pyo3::types::PyBool>() {
+        return Err(invalid(py, what, "a bool; an index or a component name is required"));
+    }
+    if let Ok(i) = key.extract::<i64>() {
+        if i >= 0 && (i as usize) < nc {
+            return Ok(i as usize);
+        }
+        return Err(invalid(py, what, &format!("index {i} for a model of {nc} components")));
+    }
+    match key.extract::<String>() {
+        Ok(s) => model_index(py, model, &s),
+        Err(_) => Err(invalid(py, what, "an index or a component name is required")),
     }
 }
 
@@ -353,6 +448,9 @@ impl PyModel {
             Some(b) => &b.inner,
             None => DataBank::embedded(),
         };
+        if is_iapws95(kind) {
+            return Self::iapws95_from_args(py, components, kij, volume_shift, bank);
+        }
         let kind = cubic_kind(py, kind)?;
         let (refs, names) = component_refs(py, components, bank)?;
         let mut desc = serde_json::Map::new();
@@ -382,6 +480,14 @@ impl PyModel {
         Ok(PyModel {
             inner: Arc::new(check(py, d.build(bank))?),
         })
+    }
+
+    /// Water by the IAPWS-95 formulation (IAPWS R6-95(2018)): one component, "water".
+    #[staticmethod]
+    fn water() -> Self {
+        PyModel {
+            inner: Arc::new(Model::Iapws95(tieline::model::Iapws95::new())),
+        }
     }
 
     /// A model from a description (JSON text; the Python layer turns dicts into text) or from
@@ -447,10 +553,14 @@ impl PyModel {
         self.inner.num_components()
     }
 
-    /// The equation of state.
+    /// The equation of state: a cubic kind, or "iapws95" for water.
     #[getter]
     fn kind(&self) -> &'static str {
-        kind_name(self.eos().kind())
+        match &*self.inner {
+            Model::Cubic(m) => kind_name(m.kind()),
+            Model::Iapws95(_) => "iapws95",
+            _ => "other",
+        }
     }
 
     /// Molar masses, kg/mol.
@@ -489,7 +599,8 @@ impl PyModel {
         PyArray1::from_vec(py, v)
     }
 
-    /// k_ij = k0 + k1·T at `temperature` (K), an nc×nc matrix.
+    /// k_ij = k0 + k1·T at `temperature` (K), an nc×nc matrix (zeros for a model without
+    /// interaction parameters, such as IAPWS-95).
     #[pyo3(signature = (temperature=298.15))]
     fn kij<'py>(&self, py: Python<'py>, temperature: f64) -> PyResult<Bound<'py, PyAny>> {
         if !(temperature.is_finite() && temperature > 0.0) {
@@ -499,27 +610,19 @@ impl PyModel {
                 &format!("{temperature} K; a finite value > 0 K is required"),
             ));
         }
-        let k = self.eos().kij();
+        let Some(eos) = self.cubic() else {
+            // No interaction parameters: a one-fluid model of its own (k_ii = 0 by definition).
+            let nc = self.inner.num_components();
+            return records::arr2(py, nc, nc, vec![0.0; nc * nc]);
+        };
+        let k = eos.kij();
         let v: Vec<f64> = k.k0.iter().zip(&k.k1).map(|(a, b)| a + b * temperature).collect();
         records::arr2(py, k.nc, k.nc, v)
     }
 
     /// Index of a component by name, alias or CAS number.
     fn index(&self, py: Python<'_>, name: &str) -> PyResult<usize> {
-        let key = name.trim().to_lowercase();
-        for (i, c) in self.eos().components().iter().enumerate() {
-            if c.name.to_lowercase() == key || c.cas == key || c.aliases.iter().any(|a| a.to_lowercase() == key) {
-                return Ok(i);
-            }
-        }
-        Err(errors::to_py(
-            py,
-            &tieline::Error::UnknownComponent {
-                name: name.to_string(),
-                suggestions: self.components(),
-            },
-            Some("not a component of this model"),
-        ))
+        model_index(py, &self.inner, name)
     }
 
     fn __eq__(&self, other: &Bound<'_, PyAny>) -> bool {
@@ -660,7 +763,16 @@ pub(crate) fn bubble_dew_solver(py: Python<'_>, which: &str) -> PyResult<BubbleD
     })
 }
 
-fn amounts_slice<'a>(py: Python<'_>, a: &'a PyReadonlyArray1<'_, f64>) -> PyResult<&'a [f64]> {
+/// A real number from a Python object (int, float or numpy scalar; not a bool).
+pub(crate) fn real(py: Python<'_>, x: &Bound<'_, PyAny>, what: &str) -> PyResult<f64> {
+    if x.is_instance_of::<pyo3::types::PyBool>() || x.is_instance_of::<pyo3::types::PyString>() {
+        return Err(invalid(py, what, &format!("{x}; a number is required")));
+    }
+    x.extract::<f64>()
+        .map_err(|_| invalid(py, what, &format!("{x}; a number is required")))
+}
+
+pub(crate) fn amounts_slice<'a>(py: Python<'_>, a: &'a PyReadonlyArray1<'_, f64>) -> PyResult<&'a [f64]> {
     a.as_slice()
         .map_err(|_| invalid(py, "amounts", "a contiguous 1-D float64 array is required"))
 }
@@ -999,6 +1111,7 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<PyModel>()?;
     m.add_class::<PyFlashOptions>()?;
     m.add_class::<PyPhaseState>()?;
+    m.add_class::<solids::PySolid>()?;
     m.add_function(wrap_pyfunction!(_bank_from_json, m)?)?;
     m.add_function(wrap_pyfunction!(_model_from_json, m)?)?;
     m.add_function(wrap_pyfunction!(_state_from_json, m)?)?;
@@ -1011,6 +1124,21 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(sweeps::saturation_sweep, m)?)?;
     m.add_function(wrap_pyfunction!(sweeps::bubble_dew_sweep, m)?)?;
     m.add_function(wrap_pyfunction!(sweeps::properties_sweep, m)?)?;
+    m.add_function(wrap_pyfunction!(solids::_solid_from_json, m)?)?;
+    m.add_function(wrap_pyfunction!(solids::_solid_point, m)?)?;
+    m.add_function(wrap_pyfunction!(solids::_solid_sweep, m)?)?;
+    m.add_function(wrap_pyfunction!(solids::solid_flash_point, m)?)?;
+    m.add_function(wrap_pyfunction!(solids::frost_point, m)?)?;
+    m.add_function(wrap_pyfunction!(pure::pure_phases, m)?)?;
+    m.add_function(wrap_pyfunction!(pure::pure_evaluate, m)?)?;
+    m.add_function(wrap_pyfunction!(pure::pure_stable_phase, m)?)?;
+    m.add_function(wrap_pyfunction!(pure::pure_stable_sweep, m)?)?;
+    m.add_function(wrap_pyfunction!(pure::pure_coexistence, m)?)?;
+    m.add_function(wrap_pyfunction!(pure::pure_trace, m)?)?;
+    m.add_function(wrap_pyfunction!(pure::pure_triple_point, m)?)?;
+    m.add_function(wrap_pyfunction!(pure::pure_gibbs_curves, m)?)?;
+    m.add_function(wrap_pyfunction!(water::water_state, m)?)?;
+    m.add_function(wrap_pyfunction!(water::water_saturation_point, m)?)?;
     m.add_function(wrap_pyfunction!(set_threads, m)?)?;
     m.add_function(wrap_pyfunction!(get_threads, m)?)?;
     Ok(())

@@ -36,7 +36,7 @@ impl Points<'_> {
     }
 }
 
-fn slice<'a>(py: Python<'_>, a: &'a PyReadonlyArray1<'_, f64>, what: &str) -> PyResult<&'a [f64]> {
+pub(crate) fn slice<'a>(py: Python<'_>, a: &'a PyReadonlyArray1<'_, f64>, what: &str) -> PyResult<&'a [f64]> {
     a.as_slice()
         .map_err(|_| errors::invalid(py, what, "a contiguous 1-D float64 array is required"))
 }
@@ -76,9 +76,9 @@ pub fn feeds<'a>(
 }
 
 /// Per-point failures, in index order.
-type Failures = Vec<(usize, Error)>;
+pub(crate) type Failures = Vec<(usize, Error)>;
 
-fn failures_to_py<'py>(
+pub(crate) fn failures_to_py<'py>(
     py: Python<'py>,
     mut fails: Failures,
     raise: bool,

@@ -3,15 +3,21 @@
 //!
 //! The file goes to `$TIELINE_REFERENCE_OUT` when set (the Python test script sets it), else
 //! under cargo's temporary directory. Inputs are the shared vectors of `tests/vectors/` plus
-//! a sweep and curves defined here and written into the file, so both sides use the same ones.
+//! a sweep and curves defined here and written into the file, so both sides use the same ones;
+//! for water (IAPWS-95 with IAPWS-06 ice Ih) the calls of the "water" section, and the flashes
+//! with solids (dry ice from methane, ice from methane and from pure water) with a frost point.
 
 use serde_json::{Value, json};
 use std::path::PathBuf;
 use tieline::equilibrium::{
-    FlashContext, FlashOptions, SaturationOptions, StabilityOptions, bubble_pressure, dew_pressure, flash_pt,
-    saturation_pressure, saturation_temperature, stability,
+    Coexistence, FlashContext, FlashOptions, PhasePoint, PurePhase, PurePhases, SaturationOptions, SolidFlashOptions,
+    SolidPhaseSpec, StabilityOptions, bubble_pressure, dew_pressure, flash_pt, flash_pt_with_solids,
+    frost_point_temperature, saturation_pressure, saturation_temperature, stability,
 };
-use tieline::model::{Model, PhaseState, RootChoice, model_from_json};
+use tieline::model::{
+    CubicEos, CubicKind, FusionData, FusionSolid, Iapws95, IceIh, Model, PhaseState, RootChoice, SolidModel,
+    model_from_json,
+};
 use tieline::substance::DataBank;
 
 fn vectors() -> Value {
@@ -52,6 +58,148 @@ fn sweep(m: &Model, t: &[f64], p: &[f64], feed: &[f64], block: usize) -> Vec<Val
         }
     }
     out
+}
+
+fn point(p: &PhasePoint) -> Value {
+    json!({"temperature": p.temperature, "pressure": p.pressure, "gibbs": p.gibbs, "enthalpy": p.enthalpy,
+           "entropy": p.entropy, "molar_volume": p.molar_volume})
+}
+
+fn coexistence(r: Result<Coexistence, tieline::Error>) -> Value {
+    match r {
+        Ok(c) => json!({"temperature": c.temperature, "pressure": c.pressure, "a": point(&c.states.0),
+                        "b": point(&c.states.1), "delta_h": c.delta_h, "delta_s": c.delta_s,
+                        "delta_v": c.delta_v, "clapeyron_slope": c.clapeyron_slope,
+                        "iterations": c.iterations}),
+        Err(e) => json!({"error": format!("{:?}", e.kind())}),
+    }
+}
+
+fn curves(r: Result<tieline::equilibrium::GibbsCurves, tieline::Error>) -> Value {
+    match r {
+        Ok(g) => {
+            let rows: Vec<Value> = g.curves.iter().map(|(_, v)| json!(v)).collect();
+            let xs: Vec<Value> = g
+                .crossings
+                .iter()
+                .map(|x| json!({"point": coexistence(Ok(x.point)), "gibbs": x.gibbs, "stable": x.stable}))
+                .collect();
+            json!({"grid": g.grid, "gibbs": rows, "crossings": xs})
+        }
+        Err(e) => json!({"error": format!("{:?}", e.kind())}),
+    }
+}
+
+/// The calls the Python suite makes for one case of the "water" section, by kind.
+fn water_case(c: &Value) -> Value {
+    let w = Iapws95::new();
+    let m = model(&c["model"]).ok();
+    let ice = IceIh::new();
+    let num = |k: &str| c[k].as_f64().unwrap_or(f64::NAN);
+    let (t, p) = (num("temperature"), num("pressure"));
+    let rec = match c["kind"].as_str().expect("kind") {
+        "state_td" => json!({"state": outcome(w.state_td(t, num("density")))}),
+        "saturation_t" => {
+            let m = m.expect("water model");
+            let set = PurePhases::new(&m, 0, vec![&ice as &dyn SolidModel]).expect("water phases");
+            json!({"saturation": outcome(w.saturation_at_temperature(t)),
+                   "coexistence": coexistence(set.coexistence_at_temperature(PurePhase::Liquid, PurePhase::Vapor, t, None))})
+        }
+        "ice_tp" => {
+            let mut sp = outcome(ice.specific_properties(t, p));
+            sp["temperature"] = json!(t);
+            sp["pressure"] = json!(p);
+            json!({"specific": sp, "molar": outcome(ice.properties(t, p))})
+        }
+        "melting_p" => {
+            let m = m.expect("water model");
+            let set = PurePhases::new(&m, 0, vec![&ice as &dyn SolidModel]).expect("water phases");
+            let ts: Vec<f64> = (0..9).map(|k| 263.15 + 5.0 * k as f64).collect();
+            let stable = |t: f64| outcome(set.stable_phase(t, p).map(|s| point(&s.stable)));
+            json!({"melting": coexistence(set.coexistence_at_pressure(PurePhase::Solid(0), PurePhase::Liquid, p, None)),
+                   "stable_263": stable(263.15), "stable_283": stable(283.15),
+                   "curves_temperatures": ts, "curves": curves(set.gibbs_curves_isobaric(p, &ts))})
+        }
+        "triple_point" => {
+            let m = m.expect("water model");
+            let set = PurePhases::new(&m, 0, vec![&ice as &dyn SolidModel]).expect("water phases");
+            match set.triple_point(0, None) {
+                Ok(tp) => json!({"temperature": tp.temperature, "pressure": tp.pressure, "residual": tp.residual,
+                                 "iterations": tp.iterations,
+                                 "phases": tp.phases.iter().map(point).collect::<Vec<_>>()}),
+                Err(e) => json!({"error": format!("{:?}", e.kind())}),
+            }
+        }
+        k => panic!("unknown water case kind {k}"),
+    };
+    json!({"id": c["id"], "kind": c["kind"], "result": rec})
+}
+
+/// Traced boundaries and isothermal curves of water with ice, beyond the vector cases.
+fn water_extra() -> Value {
+    let m = Model::Iapws95(Iapws95::new());
+    let ice = IceIh::new();
+    let set = PurePhases::new(&m, 0, vec![&ice as &dyn SolidModel]).expect("water phases");
+    let melt_p = [101_325.0, 1e6, 1e7, 5e7, 1e8];
+    let boil_t = [300.0, 350.0, 400.0, 450.0, 500.0];
+    let iso_p: Vec<f64> = (0..25).map(|k| 100.0 * 10f64.powf(k as f64 / 8.0)).collect();
+    let trace = |r: Result<Vec<Coexistence>, tieline::Error>| match r {
+        Ok(v) => json!(v.into_iter().map(|c| coexistence(Ok(c))).collect::<Vec<_>>()),
+        Err(e) => json!({"error": format!("{:?}", e.kind())}),
+    };
+    json!({
+        "melting_pressures": melt_p,
+        "melting_trace": trace(set.trace_along_pressure(PurePhase::Solid(0), PurePhase::Liquid, &melt_p, None)),
+        "boiling_temperatures": boil_t,
+        "boiling_trace": trace(set.trace_along_temperature(PurePhase::Liquid, PurePhase::Vapor, &boil_t, None)),
+        "isothermal_temperature": 265.0,
+        "isothermal_pressures": iso_p,
+        "isothermal": curves(set.gibbs_curves_isothermal(265.0, &iso_p)),
+    })
+}
+
+/// Flashes with solids and a frost point, as the Python suite makes them.
+fn solid_flashes() -> Value {
+    let bank = DataBank::embedded();
+    let co2 = Model::Cubic(
+        CubicEos::new(
+            CubicKind::PengRobinson,
+            bank.get_many(&["methane", "carbon dioxide"]).expect("components"),
+        )
+        .expect("model"),
+    );
+    let dry = FusionSolid::anchored(&co2, 1, FusionData::carbon_dioxide()).expect("dry ice");
+    let dry_spec = SolidPhaseSpec::matching(&co2, &dry).expect("spec");
+    let humid = Model::Cubic(
+        CubicEos::new(
+            CubicKind::PengRobinson,
+            bank.get_many(&["methane", "water"]).expect("components"),
+        )
+        .expect("model"),
+    );
+    let ice = IceIh::new();
+    let ice_humid = SolidPhaseSpec::matching(&humid, &ice).expect("spec");
+    let water = Model::Iapws95(Iapws95::new());
+    let ice_water = SolidPhaseSpec::matching(&water, &ice).expect("spec");
+    // 1 ppm of water: ice forms from the vapour (its dew point lies far below the frost point).
+    let humid_feed = [1.0 - 1e-6, 1e-6];
+    let o = SolidFlashOptions::default();
+    let fo = FlashOptions {
+        certificate: false,
+        ..FlashOptions::default()
+    };
+    json!({
+        "dry_ice": {"components": ["methane", "carbon dioxide"], "temperature": 160.0, "pressure": 5e5,
+                    "feed": [0.98, 0.02],
+                    "result": outcome(flash_pt_with_solids(&co2, &[dry_spec], 160.0, 5e5, &[0.98, 0.02], &o)),
+                    "frost_point": outcome(frost_point_temperature(&co2, dry_spec, 5e5, &[0.98, 0.02], 216.592, &fo))},
+        "ice_humid": {"components": ["methane", "water"], "temperature": 205.0, "pressure": 5e6,
+                      "feed": humid_feed,
+                      "result": outcome(flash_pt_with_solids(&humid, &[ice_humid], 205.0, 5e6, &humid_feed, &o)),
+                      "frost_point": outcome(frost_point_temperature(&humid, ice_humid, 5e6, &humid_feed, 273.16, &fo))},
+        "ice_water": {"temperature": 263.15, "pressure": 101_325.0, "feed": [1.0],
+                      "result": outcome(flash_pt_with_solids(&water, &[ice_water], 263.15, 101_325.0, &[1.0], &o))},
+    })
 }
 
 #[test]
@@ -149,6 +297,9 @@ fn write_reference_outputs() {
                        "saturation_temperature_pressure": tsat_p, "saturation_temperature_component1": tsat},
             "properties_stable": props,
         },
+        "water": v["water"].as_array().expect("water cases").iter().map(water_case).collect::<Vec<_>>(),
+        "water_extra": water_extra(),
+        "solid_flash": solid_flashes(),
     });
     // The sweep must contain both one- and two-phase points, or it tests little.
     let two_phase = flash_sweep

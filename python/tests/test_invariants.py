@@ -84,3 +84,38 @@ def test_saturation_equal_fugacity_and_clapeyron(t):
     dpdt = (tl.saturation_pressure(m, t + h).pressure - tl.saturation_pressure(m, t - h).pressure) / (2 * h)
     clap = s.enthalpy_of_vaporization / (t * (s.vapor_molar_volume - s.liquid_molar_volume))
     assert abs(dpdt - clap) < 1e-5 * clap
+
+
+WATER_SET = tl.PureSubstance(tl.Model.water(), solids=[tl.Solid.ice_ih()])
+CO2_CH4 = tl.Model(["methane", "carbon dioxide"])
+DRY_ICE = tl.Solid.carbon_dioxide(CO2_CH4)
+
+
+@SETTINGS
+@given(st.floats(200.0, 1000.0), st.floats(10.0, 2.0e8))
+def test_stable_phase_of_water_is_the_least_gibbs_energy(t, p):
+    # At any (T, p) in range, the stable phase has the least molar Gibbs energy of the phases
+    # that exist there, each of which has g = h − Ts.
+    s = WATER_SET.stable_phase(t, p)
+    assert s.stable == s.candidates[0]
+    for c in s.candidates:
+        assert np.isfinite([c.gibbs, c.enthalpy, c.entropy, c.molar_volume]).all()
+        assert c.gibbs >= s.stable.gibbs
+        assert abs(c.gibbs - (c.enthalpy - t * c.entropy)) <= 1e-9 * abs(c.enthalpy)
+        assert c.molar_volume > 0
+
+
+@SETTINGS
+@given(st.floats(150.0, 215.0), st.floats(1.0e5, 3.0e6), st.floats(1e-3, 0.2))
+def test_flash_with_dry_ice_conserves_mass_and_certifies(t, p, x):
+    # CO2 freeze-out from methane: the solid plus the fluid hold the feed; a present solid
+    # fixes the fluid's CO2 fugacity, an absent one is no less stable than the fluid.
+    z = np.array([1.0 - x, x])
+    r = tl.flash_with_solids(CO2_CH4, t, p, z, DRY_ICE)
+    fluid = np.zeros(2) if r.fluid is None else sum(ph.amount * ph.composition for ph in r.fluid.phases)
+    solid = np.array([0.0, r.solid_amounts()[0]])
+    np.testing.assert_allclose(fluid + solid, z, rtol=0, atol=1e-12)
+    m = r.margins[0]
+    assert m.margin >= -1e-9 if not m.present else abs(m.margin) <= 1e-9
+    if r.fluid is not None:
+        assert r.fluid.diagnostics.certificate >= -1e-10

@@ -15,6 +15,7 @@ from conftest import ROOT
 NOTEBOOKS = {
     "natural_gas_phase_map.ipynb": ["natural_gas_phase_map.png"],
     "gibbs_branches.ipynb": ["gibbs_branches.png"],
+    "water_phases_gibbs.ipynb": ["water_phases_gibbs.png"],
 }
 
 

@@ -83,3 +83,90 @@ def test_saturation_vectors(case):
     # Round trip through the boiling temperature.
     back = tl.saturation_temperature(m, s.pressure, case["component"])
     assert back.temperature == pytest.approx(case["temperature"], rel=1e-9)
+
+
+# The "water" section: IAPWS-95 (IAPWS R6-95(2018) Tables 7 and 8), IAPWS-06 ice Ih (IAPWS
+# R10-06(2009) check table), the normal melting point and the triple point. Each case names
+# its source in its "source" field; tolerances are the file's.
+WATER = tl.Model.water()
+ICE = tl.Solid.ice_ih()
+WATER_PHASES = tl.PureSubstance(WATER, solids=[ICE])
+M_WATER = WATER.molar_masses[0]  # kg/mol
+
+
+def rel(got, want, tol, what, case):
+    assert abs(got - want) <= tol * abs(want), f"{case['id']} {what}: {got!r} vs {want!r} ({case['source']})"
+
+
+@pytest.mark.parametrize("case", CASES["water"], ids=ids("water"))
+def test_water_vectors(case):
+    exp = case["expected"]
+    kind = case["kind"]
+    if kind == "state_td":
+        # Source: the case's "source" (IAPWS R6-95(2018) Table 7), per kg in the IAPWS-95
+        # reference state.
+        s = tl.water_properties(case["temperature"], density=case["density"])
+        for key in ("pressure", "cv", "speed_of_sound", "entropy"):
+            rel(getattr(s, key), exp[key], case["rel_tolerance"], key, case)
+        # The same state through the generic fluid-model path (per mol): the density root at
+        # that pressure on the same side of the critical density, and its c_v and w.
+        root = "liquid" if case["density"] > 322.0 else "vapor"
+        pr = tl.phase_properties(WATER, case["temperature"], s.pressure, [1.0], root=root)
+        rel(pr.mass_density, case["density"], case["rel_tolerance"], "mass density (T, p path)", case)
+        rel(pr.cv / M_WATER, exp["cv"], case["rel_tolerance"], "cv (T, p path)", case)
+        rel(pr.speed_of_sound, exp["speed_of_sound"], case["rel_tolerance"], "w (T, p path)", case)
+    elif kind == "saturation_t":
+        # Source: the case's "source" (IAPWS R6-95(2018) Table 8).
+        sat = tl.water_saturation(temperature=case["temperature"])
+        tol = case["rel_tolerance"]
+        rel(sat.pressure, exp["pressure"], tol, "pressure", case)
+        for phase in ("liquid", "vapor"):
+            state = getattr(sat, phase)
+            rel(state.density, exp[f"{phase}_density"], tol, f"{phase} density", case)
+            rel(state.enthalpy, exp[f"{phase}_enthalpy"], tol, f"{phase} enthalpy", case)
+            rel(state.entropy, exp[f"{phase}_entropy"], tol, f"{phase} entropy", case)
+        # The generic saturation solver and the pure-substance phase set agree with it.
+        generic = tl.saturation_pressure(WATER, case["temperature"])
+        rel(generic.pressure, exp["pressure"], tol, "pressure (saturation_pressure)", case)
+        rel(generic.liquid_density * M_WATER, exp["liquid_density"], tol, "liquid density (mol/m3 path)", case)
+        rel(generic.vapor_density * M_WATER, exp["vapor_density"], tol, "vapour density (mol/m3 path)", case)
+        dh = (exp["vapor_enthalpy"] - exp["liquid_enthalpy"]) * M_WATER
+        rel(generic.enthalpy_of_vaporization, dh, tol, "enthalpy of vaporisation (J/mol)", case)
+        c = WATER_PHASES.coexistence_at_temperature(case["temperature"], ("liquid", "vapor"))
+        rel(c.pressure, exp["pressure"], tol, "pressure (PureSubstance)", case)
+        rel(c.delta_h, dh, tol, "delta_h (PureSubstance)", case)
+        ds = (exp["vapor_entropy"] - exp["liquid_entropy"]) * M_WATER
+        rel(c.delta_s, ds, tol, "delta_s (PureSubstance)", case)
+    elif kind == "ice_tp":
+        # Source: the case's "source" (IAPWS R10-06(2009) check table), per kg in the IAPWS-06
+        # reference state.
+        s = ICE.specific_properties(case["temperature"], case["pressure"])
+        for key in ("gibbs", "density", "cp"):
+            rel(getattr(s, key), exp[key], case["rel_tolerance"], key, case)
+        # Per mol in the library reference: cp and v scale by the molar mass.
+        m = ICE.properties(case["temperature"], case["pressure"])
+        rel(m.cp, exp["cp"] * M_WATER, case["rel_tolerance"], "molar cp", case)
+        rel(m.molar_volume, M_WATER / exp["density"], case["rel_tolerance"], "molar volume", case)
+    elif kind == "melting_p":
+        # Source: the case's "source" (R10-06 normal melting point, equal Gibbs energies of
+        # IAPWS-95 liquid and IAPWS-06 ice).
+        m = WATER_PHASES.coexistence_at_pressure(case["pressure"], ("solid", "liquid"))
+        assert abs(m.temperature - exp["temperature"]) <= case["abs_tolerance"], case["source"]
+        # Ice Ih is less dense than the liquid (R10-06 and R6-95 densities above), so the
+        # melting curve falls with pressure.
+        assert m.delta_v < 0 and m.clapeyron_slope < 0
+    elif kind == "triple_point":
+        # Source: the case's "source" (ITS-90 triple point; IAPWS-95 vapour pressure there).
+        tp = WATER_PHASES.triple_point()
+        tol = case["abs_tolerance"]
+        assert abs(tp.temperature - exp["temperature"]) <= tol["temperature"], case["source"]
+        assert abs(tp.pressure - exp["pressure"]) <= tol["pressure"], case["source"]
+        assert [p.phase for p in tp.phases] == ["solid", "liquid", "vapor"]
+    else:
+        pytest.fail(f"{case['id']}: unknown kind {kind!r}")
+
+
+def test_every_water_case_kind_is_run():
+    kinds = {c["kind"] for c in CASES["water"]}
+    assert kinds == {"state_td", "saturation_t", "ice_tp", "melting_p", "triple_point"}
+    assert len(CASES["water"]) >= 19

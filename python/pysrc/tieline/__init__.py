@@ -11,26 +11,37 @@ Build a :class:`Model` from component names, flash it at a temperature (K) and p
 Every function also takes numpy arrays (broadcast together) and then computes in parallel
 with the GIL released. Units are SI throughout: K, Pa, mol, m3, J.
 
+Water is :meth:`Model.water` (IAPWS-95); solids are :class:`Solid` (ice Ih by IAPWS-06, dry
+ice from fusion data); :class:`PureSubstance` gives the stable phase, melting, boiling and
+sublimation curves, triple points and Gibbs-energy curves of one substance over its fluid and
+solid phases; :func:`flash_with_solids` and :func:`frost_point_temperature` handle freeze-out
+from mixtures.
+
 Caution: tieline is an aid to engineering judgement, not a substitute for it. Respect the
 validity ranges of every model and correlation.
 """
 
 from __future__ import annotations
 
-from ._core import ComponentBank, Model, PhaseState, __version__
+from ._core import ComponentBank, Model, PhaseState, Solid, __version__
 from ._api import (
     bubble_pressure,
     bubble_temperature,
     dew_pressure,
     dew_temperature,
     flash,
+    flash_with_solids,
+    frost_point_temperature,
     get_threads,
     phase_properties,
     saturation_pressure,
     saturation_temperature,
     set_threads,
     stability,
+    water_properties,
+    water_saturation,
 )
+from ._pure import PureSubstance
 from ._errors import (
     ConvergenceError,
     DataError,
@@ -43,17 +54,34 @@ from ._errors import (
 from ._results import (
     BubbleDewCurve,
     BubbleDewPoint,
+    Coexistence,
+    CoexistenceCurve,
+    Crossing,
     FlashDiagnostics,
     FlashResult,
     FlashSweep,
+    GibbsCurves,
+    IceProperties,
     Phase,
+    PhasePoint,
     Properties,
     PropertyTable,
     SaturationCurve,
     SaturationPoint,
+    SolidFlashDiagnostics,
+    SolidFlashResult,
+    SolidMargin,
+    SolidPhase,
+    SolidProperties,
+    SolidPropertyTable,
     StabilityResult,
+    StablePhase,
+    StablePhaseMap,
     StationaryPoint,
     TieLine,
+    TriplePoint,
+    WaterProperties,
+    WaterSaturation,
 )
 
 __all__ = [
@@ -61,6 +89,8 @@ __all__ = [
     "Model",
     "ComponentBank",
     "PhaseState",
+    "Solid",
+    "PureSubstance",
     "flash",
     "stability",
     "saturation_pressure",
@@ -70,6 +100,10 @@ __all__ = [
     "bubble_temperature",
     "dew_temperature",
     "phase_properties",
+    "flash_with_solids",
+    "frost_point_temperature",
+    "water_properties",
+    "water_saturation",
     "set_threads",
     "get_threads",
     "FlashResult",
@@ -85,6 +119,23 @@ __all__ = [
     "BubbleDewCurve",
     "Properties",
     "PropertyTable",
+    "WaterProperties",
+    "WaterSaturation",
+    "SolidProperties",
+    "SolidPropertyTable",
+    "IceProperties",
+    "PhasePoint",
+    "StablePhase",
+    "StablePhaseMap",
+    "Coexistence",
+    "CoexistenceCurve",
+    "TriplePoint",
+    "Crossing",
+    "GibbsCurves",
+    "SolidFlashResult",
+    "SolidPhase",
+    "SolidMargin",
+    "SolidFlashDiagnostics",
     "TielineError",
     "InvalidInputError",
     "UnknownComponentError",

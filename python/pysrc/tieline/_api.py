@@ -15,7 +15,7 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from . import _core
-from ._core import Model
+from ._core import Model, Solid
 from ._errors import _invalid
 from ._results import (
     _KINDS,
@@ -27,7 +27,12 @@ from ._results import (
     PropertyTable,
     SaturationCurve,
     SaturationPoint,
+    SolidFlashResult,
+    SolidProperties,
+    SolidPropertyTable,
     StabilityResult,
+    WaterProperties,
+    WaterSaturation,
 )
 
 __all__ = [
@@ -40,6 +45,10 @@ __all__ = [
     "bubble_temperature",
     "dew_temperature",
     "phase_properties",
+    "flash_with_solids",
+    "frost_point_temperature",
+    "water_properties",
+    "water_saturation",
     "set_threads",
     "get_threads",
 ]
@@ -614,6 +623,233 @@ def phase_properties(
         failures=_failures(raw["failures"], shape),
         **{n: raw[n].reshape(shape) for n in _PROPERTY_NAMES},
     )
+
+
+# ---------------------------------------------------------------------------------------------
+# Solids
+
+
+def _solid_list(solids: Any) -> List[Solid]:
+    """The solids argument as a list: one Solid or a sequence of them."""
+    if isinstance(solids, Solid):
+        return [solids]
+    if isinstance(solids, (str, bytes)):
+        raise _invalid("solids", f"{solids!r}; a Solid or a sequence of Solid objects is required")
+    try:
+        items = list(solids)
+    except TypeError:
+        raise _invalid("solids", f"{type(solids).__name__}; a Solid or a sequence of Solid objects is required") from None
+    for k, s in enumerate(items):
+        if not isinstance(s, Solid):
+            raise _invalid("solids", f"item {k} is a {type(s).__name__}; tieline.Solid objects are required")
+    return items
+
+
+def _check_solid(solid: Any) -> Solid:
+    if not isinstance(solid, Solid):
+        raise _invalid("solid", f"{type(solid).__name__}; a tieline.Solid is required")
+    return solid
+
+
+def _broadcast_tp(temperature: ArrayLike, pressure: ArrayLike) -> Tuple[Tuple[int, ...], np.ndarray, np.ndarray]:
+    """Temperatures (K) and pressures (Pa) broadcast together: the shape and both flattened."""
+    t = _array(temperature, "temperature")
+    p = _array(pressure, "pressure")
+    try:
+        shape = np.broadcast_shapes(t.shape, p.shape)
+    except ValueError:
+        raise _invalid("shapes", f"temperature {t.shape} and pressure {p.shape} do not broadcast together") from None
+    tf = np.ascontiguousarray(np.broadcast_to(t, shape), dtype=np.float64).reshape(-1)
+    pf = np.ascontiguousarray(np.broadcast_to(p, shape), dtype=np.float64).reshape(-1)
+    return shape, tf, pf
+
+
+def _solid_properties(
+    solid: Solid, temperature: ArrayLike, pressure: ArrayLike, on_error: str = "raise"
+) -> Union[SolidProperties, SolidPropertyTable]:
+    """The engine of :meth:`Solid.properties`: scalars give :class:`SolidProperties`, arrays
+    (broadcast together) a :class:`SolidPropertyTable`."""
+    if _is_scalar(temperature) and _is_scalar(pressure):
+        return _core._solid_point(solid, _scalar(temperature, "temperature"), _scalar(pressure, "pressure"))
+    raise_errors = _on_error(on_error)
+    shape, tf, pf = _broadcast_tp(temperature, pressure)
+    raw = _core._solid_sweep(solid, tf, pf, raise_errors)
+    return SolidPropertyTable(
+        species=solid.species,
+        temperature=tf.reshape(shape),
+        pressure=pf.reshape(shape),
+        failures=_failures(raw["failures"], shape),
+        **{n: raw[n].reshape(shape) for n in ("gibbs", "enthalpy", "entropy", "molar_volume", "cp", "ok")},
+    )
+
+
+def flash_with_solids(
+    model: Model,
+    temperature: float,
+    pressure: float,
+    feed: ArrayLike,
+    solids: Union[Solid, List[Solid], Tuple[Solid, ...]],
+    *,
+    tolerance: Optional[float] = None,
+    solid_tolerance: Optional[float] = None,
+    certificate: bool = True,
+    max_ss_iterations: Optional[int] = None,
+    max_newton_iterations: Optional[int] = None,
+) -> SolidFlashResult:
+    """Isothermal–isobaric (PT) flash over the fluid phases of ``model`` and the pure solid
+    phases ``solids``: freeze-out of a species (CO2 from a cold methane-rich gas, ice from
+    humid gas).
+
+    At equilibrium a present solid fixes the fluid's fugacity of its species, and an absent
+    one has a fugacity no lower than the fluid's (its margin ln f_solid − ln f_fluid ≥ 0):
+    the margins of every candidate are the solids' stability certificate, beside the fluid
+    flash's own.
+
+    Parameters
+    ----------
+    model : Model
+        The fluid model.
+    temperature : float
+        Temperature, K.
+    pressure : float
+        Pressure, Pa.
+    feed : array_like
+        Feed amounts, mol, one per component.
+    solids : Solid or sequence of Solid
+        The candidate solids; each one's species is found among the model's components by
+        name. Of several solids of one species only the most stable at (T, p) can be present.
+    tolerance : float, optional
+        Tolerance of the fluid flashes (as in :func:`flash`).
+    solid_tolerance : float, optional
+        Tolerance on |ln f_fluid − ln f_solid| of present solids and on negative margins of
+        absent ones (dimensionless, default 1e-9).
+    certificate, max_ss_iterations, max_newton_iterations
+        As in :func:`flash`, for the fluid flashes.
+
+    Returns
+    -------
+    SolidFlashResult
+        The fluid flash of what remains fluid (None if everything froze), the solids present
+        with their amounts (mol), every candidate's margin, and the diagnostics.
+
+    Raises
+    ------
+    InvalidInputError
+        Bad T, p or amounts; a solid whose species is not a component of the model.
+    NoSolutionError, ConvergenceError
+        No equilibrium found (with diagnostics).
+    """
+    _check_model(model)
+    if not (_is_scalar(temperature) and _is_scalar(pressure)):
+        raise _invalid("temperature", "flash_with_solids() takes one point: scalar temperature and pressure")
+    z = _feed(model, feed)
+    if z.ndim != 1:
+        raise _invalid("feed", f"shape {z.shape}; flash_with_solids() takes one feed, a 1-D array")
+    opts = _flash_options(tolerance, max_ss_iterations, max_newton_iterations, bool(certificate), False)
+    return _core.solid_flash_point(
+        model,
+        _solid_list(solids),
+        _scalar(temperature, "temperature"),
+        _scalar(pressure, "pressure"),
+        np.ascontiguousarray(z),
+        opts,
+        None if solid_tolerance is None else _scalar(solid_tolerance, "solid_tolerance"),
+    )
+
+
+def frost_point_temperature(
+    model: Model,
+    pressure: float,
+    feed: ArrayLike,
+    solid: Solid,
+    *,
+    t_guess: Optional[float] = None,
+    tolerance: Optional[float] = None,
+) -> float:
+    """The frost point: the temperature (K) at which the pure ``solid`` first appears from
+    the fluid of ``feed`` amounts (mol) at ``pressure`` (Pa), where the species' fugacity in
+    the fluid equals the solid's.
+
+    The search brackets the root from ``t_guess`` (K; default the solid's triple-point
+    estimate) in steps of 2 % and refines it by false position. ``tolerance`` is that of the
+    fluid flashes (as in :func:`flash`).
+
+    Raises
+    ------
+    InvalidInputError
+        Bad p or amounts; the solid's species absent from the feed or the model.
+    NoSolutionError
+        No frost point near ``t_guess``.
+    OutsideValidityError
+        The search left the solid's (or the fluid's) range of validity.
+    """
+    _check_model(model)
+    _check_solid(solid)
+    z = _feed(model, feed)
+    if z.ndim != 1:
+        raise _invalid("feed", f"shape {z.shape}; frost_point_temperature() takes one feed, a 1-D array")
+    t0 = solid.triple_point_estimate[0] if t_guess is None else _scalar(t_guess, "t_guess")
+    opts = _flash_options(tolerance, None, None, False, False)
+    return _core.frost_point(model, solid, _scalar(pressure, "pressure"), np.ascontiguousarray(z), t0, opts)
+
+
+# ---------------------------------------------------------------------------------------------
+# Water by IAPWS-95 in its own terms
+
+
+def water_properties(
+    temperature: float,
+    *,
+    density: Optional[float] = None,
+    pressure: Optional[float] = None,
+    root: str = "stable",
+) -> WaterProperties:
+    """Properties of water by IAPWS-95 (IAPWS R6-95(2018)) per kg, in the IAPWS-95 reference
+    state, at ``temperature`` (K) and either ``density`` (kg/m3) or ``pressure`` (Pa).
+
+    With a pressure, ``root`` chooses the density root: ``"stable"`` (least Gibbs energy),
+    ``"liquid"`` or ``"vapor"`` (stable or metastable branch). The same states per mol in the
+    library's reference state come from :func:`phase_properties` with :meth:`Model.water`.
+
+    Raises
+    ------
+    InvalidInputError
+        Both or neither of density and pressure; non-finite or non-positive values.
+    OutsideValidityError
+        Outside the range of the formulation (130–1273.15 K; liquid-like states from 200 K;
+        up to 1000 MPa and 1400 kg/m3).
+    NoSolutionError
+        No density root of the requested kind at (T, p), or the critical point itself.
+    """
+    if (density is None) == (pressure is None):
+        raise _invalid("density, pressure", "exactly one of density (kg/m3) or pressure (Pa) is required")
+    t = _scalar(temperature, "temperature")
+    if density is not None:
+        return _core.water_state(t, "density", _scalar(density, "density"))
+    return _core.water_state(t, "pressure", _scalar(pressure, "pressure"), root)
+
+
+def water_saturation(
+    *, temperature: Optional[float] = None, pressure: Optional[float] = None
+) -> WaterSaturation:
+    """The vapour–liquid saturation state of water by IAPWS-95 at ``temperature`` (K,
+    273.16 K ≤ T < 647.096 K) or ``pressure`` (Pa, 611.655 Pa ≤ p < 22.064 MPa), with both
+    phases per kg in the IAPWS-95 reference state.
+
+    Raises
+    ------
+    InvalidInputError
+        Both or neither of temperature and pressure given; bad values.
+    OutsideValidityError
+        Below the triple point.
+    NoSolutionError
+        At or above the critical point.
+    """
+    if (temperature is None) == (pressure is None):
+        raise _invalid("temperature, pressure", "exactly one of temperature (K) or pressure (Pa) is required")
+    if temperature is not None:
+        return _core.water_saturation_point("temperature", _scalar(temperature, "temperature"))
+    return _core.water_saturation_point("pressure", _scalar(pressure, "pressure"))
 
 
 def set_threads(n: int) -> None:

@@ -6,7 +6,23 @@ from typing import Any, Callable, Dict, List, Mapping, Optional, Sequence, Tuple
 import numpy as np
 import numpy.typing as npt
 
-from ._results import BubbleDewPoint, FlashResult, Properties, SaturationPoint, StabilityResult
+from ._results import (
+    BubbleDewPoint,
+    Coexistence,
+    FlashResult,
+    IceProperties,
+    PhasePoint,
+    Properties,
+    SaturationPoint,
+    SolidFlashResult,
+    SolidProperties,
+    SolidPropertyTable,
+    StabilityResult,
+    StablePhase,
+    TriplePoint,
+    WaterProperties,
+    WaterSaturation,
+)
 
 __version__: str
 
@@ -32,7 +48,8 @@ class ComponentBank:
 
 @final
 class Model:
-    """A thermodynamic model of a fluid mixture (immutable; shared freely between threads)."""
+    """A thermodynamic model of a fluid mixture, or of water by IAPWS-95 (immutable; shared
+    freely between threads)."""
 
     def __new__(
         cls,
@@ -42,6 +59,8 @@ class Model:
         volume_shift: Optional[Union[str, Sequence[float]]] = None,
         bank: Optional[ComponentBank] = None,
     ) -> Model: ...
+    @staticmethod
+    def water() -> Model: ...
     @classmethod
     def from_json(cls, text: str, bank: Optional[ComponentBank] = None) -> Model: ...
     @classmethod
@@ -113,6 +132,41 @@ class PhaseState:
     @property
     def model(self) -> Model: ...
     def properties(self) -> Properties: ...
+    def __reduce__(self) -> Tuple[Any, ...]: ...
+
+@final
+class Solid:
+    """A pure solid phase of one species (immutable; shared freely between threads)."""
+
+    @staticmethod
+    def ice_ih() -> Solid: ...
+    @staticmethod
+    def carbon_dioxide(model: Model, component: Optional[Union[int, str]] = None) -> Solid: ...
+    @staticmethod
+    def from_fusion_data(model: Model, component: Union[int, str], data: Dict[str, Any]) -> Solid: ...
+    @property
+    def kind(self) -> str: ...
+    @property
+    def species(self) -> str: ...
+    @property
+    def molar_mass(self) -> float: ...
+    @property
+    def validity(self) -> Dict[str, float]: ...
+    @property
+    def triple_point_estimate(self) -> Tuple[float, float]: ...
+    @property
+    def anchor_pressure(self) -> Optional[float]: ...
+    @property
+    def fusion_data(self) -> Optional[Dict[str, Any]]: ...
+    def properties(
+        self, temperature: npt.ArrayLike, pressure: npt.ArrayLike, *, on_error: str = "raise"
+    ) -> Union[SolidProperties, SolidPropertyTable]: ...
+    def specific_properties(self, temperature: float, pressure: float) -> IceProperties: ...
+    def ln_fugacity(self, model: Model, temperature: float, pressure: float) -> float: ...
+    def to_json(self) -> str: ...
+    def to_dict(self) -> Dict[str, Any]: ...
+    def __eq__(self, other: object, /) -> bool: ...
+    def __hash__(self) -> int: ...
     def __reduce__(self) -> Tuple[Any, ...]: ...
 
 def _bank_from_json(text: str, embedded: bool) -> ComponentBank: ...
@@ -188,5 +242,64 @@ def properties_sweep(
     threads: Optional[int] = None,
     raise_errors: bool = True,
 ) -> Dict[str, Any]: ...
+def _solid_from_json(text: str) -> Solid: ...
+def _solid_point(solid: Solid, temperature: float, pressure: float) -> SolidProperties: ...
+def _solid_sweep(solid: Solid, temperature: _F64, pressure: _F64, raise_errors: bool = True) -> Dict[str, Any]: ...
+def solid_flash_point(
+    model: Model,
+    solids: Sequence[Solid],
+    temperature: float,
+    pressure: float,
+    amounts: _F64,
+    options: FlashOptions,
+    tolerance: Optional[float] = None,
+) -> SolidFlashResult: ...
+def frost_point(
+    model: Model, solid: Solid, pressure: float, amounts: _F64, t_guess: float, options: FlashOptions
+) -> float: ...
+def pure_phases(model: Model, component: int, solids: Sequence[Solid]) -> List[str]: ...
+def pure_evaluate(
+    model: Model, component: int, solids: Sequence[Solid], phase: str, temperature: float, pressure: float
+) -> Optional[PhasePoint]: ...
+def pure_stable_phase(
+    model: Model, component: int, solids: Sequence[Solid], temperature: float, pressure: float
+) -> StablePhase: ...
+def pure_stable_sweep(
+    model: Model,
+    component: int,
+    solids: Sequence[Solid],
+    temperature: _F64,
+    pressure: _F64,
+    threads: Optional[int] = None,
+    raise_errors: bool = True,
+) -> Dict[str, Any]: ...
+def pure_coexistence(
+    model: Model,
+    component: int,
+    solids: Sequence[Solid],
+    by: str,
+    phase_a: str,
+    phase_b: str,
+    value: float,
+    guess: Optional[float] = None,
+) -> Coexistence: ...
+def pure_trace(
+    model: Model,
+    component: int,
+    solids: Sequence[Solid],
+    by: str,
+    phase_a: str,
+    phase_b: str,
+    values: _F64,
+    guess: Optional[float] = None,
+) -> Dict[str, Any]: ...
+def pure_triple_point(
+    model: Model, component: int, solids: Sequence[Solid], solid: str, t_guess: Optional[float] = None
+) -> TriplePoint: ...
+def pure_gibbs_curves(
+    model: Model, component: int, solids: Sequence[Solid], by: str, fixed: float, grid: _F64
+) -> Dict[str, Any]: ...
+def water_state(temperature: float, by: str, value: float, root: str = "stable") -> WaterProperties: ...
+def water_saturation_point(by: str, value: float) -> WaterSaturation: ...
 def set_threads(n: int) -> None: ...
 def get_threads() -> int: ...

@@ -32,6 +32,23 @@ __all__ = [
     "SaturationCurve",
     "BubbleDewCurve",
     "PropertyTable",
+    "WaterProperties",
+    "WaterSaturation",
+    "SolidProperties",
+    "SolidPropertyTable",
+    "IceProperties",
+    "PhasePoint",
+    "StablePhase",
+    "StablePhaseMap",
+    "Coexistence",
+    "CoexistenceCurve",
+    "TriplePoint",
+    "Crossing",
+    "GibbsCurves",
+    "SolidPhase",
+    "SolidMargin",
+    "SolidFlashDiagnostics",
+    "SolidFlashResult",
 ]
 
 
@@ -60,6 +77,13 @@ def _pandas() -> Any:
             "(or `pip install tieline[pandas]`)"
         ) from e
     return pandas
+
+
+def _array_frame(record: Any, skip: Tuple[str, ...]) -> "pandas.DataFrame":
+    """One row per point, one column per array attribute of ``record`` not in ``skip``."""
+    pd = _pandas()
+    names = [f.name for f in dataclasses.fields(record) if f.name not in skip]
+    return pd.DataFrame({n: getattr(record, n).ravel() for n in names})
 
 
 class _Record:
@@ -633,9 +657,7 @@ class SaturationCurve(_Record):
 
     def to_dataframe(self) -> "pandas.DataFrame":
         """One row per point, one column per array attribute (needs pandas)."""
-        pd = _pandas()
-        names = [f.name for f in dataclasses.fields(self) if f.name not in ("component", "failures")]
-        return pd.DataFrame({n: getattr(self, n).ravel() for n in names})
+        return _array_frame(self, ("component", "failures"))
 
 
 @dataclass(frozen=True, eq=False)
@@ -753,3 +775,680 @@ class PropertyTable(_Record):
         cols: Dict[str, Any] = {n: getattr(self, n).ravel() for n in names}
         cols.update(_frame_columns(self.components, "fugacity_", self.fugacity))
         return pd.DataFrame(cols)
+
+
+# ---------------------------------------------------------------------------------------------
+# Water by IAPWS-95 in its own terms
+
+
+@dataclass(frozen=True, eq=False)
+class WaterProperties(_Record):
+    """Properties of water at one state by IAPWS-95, **per kg** in the IAPWS-95 reference
+    state (saturated liquid at the triple point has u = 0 and s = 0), as the IAPWS release
+    tabulates them. (:func:`phase_properties` gives the same states per mol in the library's
+    reference state.)
+
+    Attributes
+    ----------
+    temperature : float
+        K.
+    density : float
+        Mass density, kg/m3.
+    pressure : float
+        Pa.
+    internal_energy, enthalpy, gibbs, helmholtz : float
+        J/kg.
+    entropy, cv, cp : float
+        J/(kg K).
+    speed_of_sound : float
+        m/s.
+    joule_thomson : float
+        (∂T/∂p)_h, K/Pa.
+    isothermal_compressibility : float
+        1/Pa.
+    thermal_expansion : float
+        1/K.
+    """
+
+    temperature: float
+    density: float
+    pressure: float
+    internal_energy: float
+    enthalpy: float
+    entropy: float
+    gibbs: float
+    helmholtz: float
+    cv: float
+    cp: float
+    speed_of_sound: float
+    joule_thomson: float
+    isothermal_compressibility: float
+    thermal_expansion: float
+
+
+@dataclass(frozen=True, eq=False)
+class WaterSaturation(_Record):
+    """A vapour–liquid saturation state of water by IAPWS-95, both phases per kg.
+
+    Attributes
+    ----------
+    temperature : float
+        K.
+    pressure : float
+        Vapour pressure, Pa.
+    liquid, vapor : WaterProperties
+        The saturated liquid and vapour (per kg, IAPWS-95 reference state).
+    iterations : int
+        Newton iterations of the phase-equilibrium solve.
+    residual : float
+        Final residual of the equal-pressure and equal-Gibbs-energy conditions
+        (dimensionless).
+    """
+
+    temperature: float
+    pressure: float
+    liquid: WaterProperties
+    vapor: WaterProperties
+    iterations: int
+    residual: float
+
+    @property
+    def enthalpy_of_vaporization(self) -> float:
+        """h'' − h', J/kg."""
+        return self.vapor.enthalpy - self.liquid.enthalpy
+
+    @property
+    def clapeyron_slope(self) -> float:
+        """dp/dT = (s'' − s')/(v'' − v') along the saturation curve, Pa/K."""
+        return (self.vapor.entropy - self.liquid.entropy) / (1.0 / self.vapor.density - 1.0 / self.liquid.density)
+
+
+# ---------------------------------------------------------------------------------------------
+# Solids
+
+
+@dataclass(frozen=True, eq=False)
+class SolidProperties(_Record):
+    """Molar properties of a pure solid at (T, p), in the library's reference state (the
+    same as that of the fluid models, so that solid and fluid Gibbs energies compare
+    directly).
+
+    Attributes
+    ----------
+    species : str
+        The species.
+    temperature, pressure : float
+        K, Pa.
+    gibbs, enthalpy : float
+        J/mol.
+    entropy : float
+        J/(mol K).
+    molar_volume : float
+        m3/mol.
+    cp : float
+        Isobaric heat capacity, J/(mol K).
+    """
+
+    species: str
+    temperature: float
+    pressure: float
+    gibbs: float
+    enthalpy: float
+    entropy: float
+    molar_volume: float
+    cp: float
+
+
+@dataclass(frozen=True, eq=False)
+class SolidPropertyTable(_Record):
+    """Molar properties of a pure solid at many (T, p) points (see :class:`SolidProperties`
+    for meanings and units), arrays shaped like the broadcast inputs.
+
+    Attributes
+    ----------
+    ok : numpy.ndarray of bool
+        False where the point failed (outside the model's range; only with
+        ``on_error="flag"``), with NaN values.
+    failures : list of (tuple, TielineError)
+        Index and exception of each failed point.
+    """
+
+    species: str
+    temperature: np.ndarray
+    pressure: np.ndarray
+    gibbs: np.ndarray
+    enthalpy: np.ndarray
+    entropy: np.ndarray
+    molar_volume: np.ndarray
+    cp: np.ndarray
+    ok: np.ndarray
+    failures: List[Tuple[Tuple[int, ...], BaseException]]
+
+    def __len__(self) -> int:
+        return int(self.temperature.size)
+
+    def to_dataframe(self) -> "pandas.DataFrame":
+        """One row per point, one column per array attribute (needs pandas)."""
+        return _array_frame(self, ("species", "failures"))
+
+
+@dataclass(frozen=True, eq=False)
+class IceProperties(_Record):
+    """Properties of ice Ih by the IAPWS-06 Gibbs function, **per kg** in the IAPWS-06
+    reference state (that of IAPWS-95), as the release tabulates them.
+
+    Attributes
+    ----------
+    temperature, pressure : float
+        K, Pa.
+    gibbs, enthalpy, helmholtz, internal_energy : float
+        J/kg.
+    entropy, cp : float
+        J/(kg K).
+    density : float
+        kg/m3.
+    thermal_expansion : float
+        Cubic expansion coefficient, 1/K.
+    pressure_coefficient : float
+        (∂p/∂T)_ρ, Pa/K.
+    isothermal_compressibility, isentropic_compressibility : float
+        1/Pa.
+    """
+
+    temperature: float
+    pressure: float
+    gibbs: float
+    enthalpy: float
+    helmholtz: float
+    internal_energy: float
+    entropy: float
+    cp: float
+    density: float
+    thermal_expansion: float
+    pressure_coefficient: float
+    isothermal_compressibility: float
+    isentropic_compressibility: float
+
+
+# ---------------------------------------------------------------------------------------------
+# Pure substances over several phases
+
+
+@dataclass(frozen=True, eq=False)
+class PhasePoint(_Record):
+    """One phase of a pure substance at (T, p): molar quantities in the library's reference
+    state.
+
+    Attributes
+    ----------
+    phase : str
+        ``"liquid"``, ``"vapor"``, or the solid's name in its set (``"solid"``, or
+        ``"solid0"``, ``"solid1"`` ... with several solids).
+    temperature, pressure : float
+        K, Pa.
+    gibbs, enthalpy : float
+        J/mol.
+    entropy : float
+        J/(mol K).
+    molar_volume : float
+        m3/mol.
+    """
+
+    phase: str
+    temperature: float
+    pressure: float
+    gibbs: float
+    enthalpy: float
+    entropy: float
+    molar_volume: float
+
+
+@dataclass(frozen=True, eq=False)
+class StablePhase(_Record):
+    """The stable phase of a pure substance at (T, p) and every phase that exists there.
+
+    Attributes
+    ----------
+    stable : PhasePoint
+        The phase of least molar Gibbs energy.
+    candidates : tuple of PhasePoint
+        Every phase that exists at (T, p) within its model's range, by increasing Gibbs
+        energy (the first is ``stable``).
+    """
+
+    stable: PhasePoint
+    candidates: Tuple[PhasePoint, ...]
+
+    @property
+    def phase(self) -> str:
+        """The name of the stable phase."""
+        return self.stable.phase
+
+
+@dataclass(frozen=True, eq=False)
+class StablePhaseMap(_Record):
+    """The stable phase of a pure substance at many (T, p) points, arrays shaped like the
+    broadcast inputs.
+
+    Attributes
+    ----------
+    phases : tuple of str
+        The phases of the set.
+    temperature, pressure : numpy.ndarray
+        K, Pa.
+    phase : numpy.ndarray of str
+        The stable phase's name at each point (``""`` where the point failed).
+    gibbs, enthalpy : numpy.ndarray
+        Molar Gibbs energy and enthalpy of the stable phase, J/mol.
+    entropy : numpy.ndarray
+        J/(mol K).
+    molar_volume : numpy.ndarray
+        m3/mol.
+    ok : numpy.ndarray of bool
+        False where the point failed (only with ``on_error="flag"``).
+    failures : list of (tuple, TielineError)
+        Index and exception of each failed point.
+    """
+
+    phases: Tuple[str, ...]
+    temperature: np.ndarray
+    pressure: np.ndarray
+    phase: np.ndarray
+    gibbs: np.ndarray
+    enthalpy: np.ndarray
+    entropy: np.ndarray
+    molar_volume: np.ndarray
+    ok: np.ndarray
+    failures: List[Tuple[Tuple[int, ...], BaseException]]
+
+    def __len__(self) -> int:
+        return int(self.temperature.size)
+
+    def to_dataframe(self) -> "pandas.DataFrame":
+        """One row per point, one column per array attribute (needs pandas)."""
+        return _array_frame(self, ("phases", "failures"))
+
+
+@dataclass(frozen=True, eq=False)
+class Coexistence(_Record):
+    """A point where two phases of a pure substance coexist (equal molar Gibbs energy).
+
+    Attributes
+    ----------
+    phases : (str, str)
+        The two phases (a, b), b being the one stable at the higher temperature for melting
+        (solid, liquid), boiling (liquid, vapor) and sublimation (solid, vapor).
+    temperature, pressure : float
+        K, Pa.
+    states : (PhasePoint, PhasePoint)
+        The two phases' states.
+    delta_h : float
+        Enthalpy of transition h_b − h_a, J/mol.
+    delta_s : float
+        Entropy of transition s_b − s_a, J/(mol K).
+    delta_v : float
+        Volume change v_b − v_a, m3/mol.
+    clapeyron_slope : float
+        Slope of the boundary dp/dT = Δs/Δv, Pa/K.
+    iterations : int
+        Newton iterations used.
+    """
+
+    phases: Tuple[str, str]
+    temperature: float
+    pressure: float
+    states: Tuple[PhasePoint, PhasePoint]
+    delta_h: float
+    delta_s: float
+    delta_v: float
+    clapeyron_slope: float
+    iterations: int
+
+    @property
+    def gibbs(self) -> float:
+        """The common molar Gibbs energy, J/mol."""
+        return self.states[0].gibbs
+
+
+@dataclass(frozen=True, eq=False)
+class CoexistenceCurve(_Record):
+    """A two-phase boundary of a pure substance traced along temperature or pressure, one
+    entry per given value.
+
+    Attributes
+    ----------
+    phases : (str, str)
+        The two phases (a, b), as in :class:`Coexistence`.
+    temperature, pressure : numpy.ndarray
+        K, Pa.
+    gibbs : numpy.ndarray
+        The common molar Gibbs energy, J/mol.
+    delta_h : numpy.ndarray
+        h_b − h_a, J/mol.
+    delta_s : numpy.ndarray
+        s_b − s_a, J/(mol K).
+    delta_v : numpy.ndarray
+        v_b − v_a, m3/mol.
+    clapeyron_slope : numpy.ndarray
+        dp/dT, Pa/K.
+    enthalpy, entropy, molar_volume : numpy.ndarray, shape (n, 2)
+        Of phases a and b: J/mol, J/(mol K), m3/mol.
+    iterations : numpy.ndarray of int
+        Newton iterations per point.
+    """
+
+    phases: Tuple[str, str]
+    temperature: np.ndarray
+    pressure: np.ndarray
+    gibbs: np.ndarray
+    delta_h: np.ndarray
+    delta_s: np.ndarray
+    delta_v: np.ndarray
+    clapeyron_slope: np.ndarray
+    enthalpy: np.ndarray
+    entropy: np.ndarray
+    molar_volume: np.ndarray
+    iterations: np.ndarray
+
+    def __len__(self) -> int:
+        return int(self.temperature.size)
+
+    def to_dataframe(self) -> "pandas.DataFrame":
+        """One row per point: T (K), p (Pa), the transition quantities and, per phase, h, s
+        and v (needs pandas)."""
+        pd = _pandas()
+        cols: Dict[str, Any] = {}
+        for n in ("temperature", "pressure", "gibbs", "delta_h", "delta_s", "delta_v", "clapeyron_slope"):
+            cols[n] = getattr(self, n)
+        for n in ("enthalpy", "entropy", "molar_volume"):
+            for k, ph in enumerate(self.phases):
+                cols[f"{n}_{ph}"] = getattr(self, n)[:, k]
+        cols["iterations"] = self.iterations
+        return pd.DataFrame(cols)
+
+
+@dataclass(frozen=True, eq=False)
+class TriplePoint(_Record):
+    """A point where a solid, the liquid and the vapour of a pure substance coexist.
+
+    Attributes
+    ----------
+    temperature, pressure : float
+        K, Pa.
+    phases : (PhasePoint, PhasePoint, PhasePoint)
+        The solid, the liquid and the vapour.
+    residual : float
+        max |g_i − g_j|/(RT) at the solution (dimensionless).
+    iterations : int
+        Outer iterations.
+    """
+
+    temperature: float
+    pressure: float
+    phases: Tuple[PhasePoint, PhasePoint, PhasePoint]
+    residual: float
+    iterations: int
+
+
+@dataclass(frozen=True, eq=False)
+class Crossing(_Record):
+    """A crossing of two Gibbs-energy curves, refined by the coexistence solve.
+
+    Attributes
+    ----------
+    point : Coexistence
+        The coexistence point.
+    gibbs : float
+        Molar Gibbs energy at the crossing, J/mol.
+    stable : bool
+        True if no other phase lies lower there (a phase transition); False for a
+        metastable crossing.
+    """
+
+    point: Coexistence
+    gibbs: float
+    stable: bool
+
+    @property
+    def phases(self) -> Tuple[str, str]:
+        """The two phases that cross."""
+        return self.point.phases
+
+    @property
+    def temperature(self) -> float:
+        """K."""
+        return self.point.temperature
+
+    @property
+    def pressure(self) -> float:
+        """Pa."""
+        return self.point.pressure
+
+
+@dataclass(frozen=True, eq=False)
+class GibbsCurves(_Record):
+    """Molar Gibbs energies of every phase of a pure substance along temperature at fixed
+    pressure (isobaric) or along pressure at fixed temperature (isothermal).
+
+    Attributes
+    ----------
+    along : str
+        ``"temperature"`` (isobaric curves g(T)) or ``"pressure"`` (isothermal g(p)).
+    temperature, pressure : numpy.ndarray
+        K and Pa at each grid point (one of them constant).
+    phases : tuple of str
+        The phases, one curve each, in the order of the rows of ``gibbs``.
+    gibbs : numpy.ndarray, shape (len(phases), n)
+        Molar Gibbs energy, J/mol; NaN where the phase does not exist or is outside its
+        model's range.
+    crossings : tuple of Crossing
+        Where two curves cross, stable (phase transitions) or metastable.
+    """
+
+    along: str
+    temperature: np.ndarray
+    pressure: np.ndarray
+    phases: Tuple[str, ...]
+    gibbs: np.ndarray
+    crossings: Tuple[Crossing, ...]
+
+    @property
+    def grid(self) -> np.ndarray:
+        """The grid: temperatures (K) for isobaric curves, pressures (Pa) for isothermal ones."""
+        return self.temperature if self.along == "temperature" else self.pressure
+
+    def curve(self, phase: str) -> np.ndarray:
+        """The Gibbs-energy curve (J/mol) of ``phase`` (one of :attr:`phases`)."""
+        if phase == "vapour":
+            phase = "vapor"
+        if phase not in self.phases:
+            from ._errors import _invalid
+
+            raise _invalid("phase", f"{phase!r}; one of {list(self.phases)} is required")
+        return self.gibbs[self.phases.index(phase)]
+
+    @property
+    def stable_gibbs(self) -> np.ndarray:
+        """The least Gibbs energy over the phases at each grid point, J/mol (NaN where no
+        phase exists)."""
+        g = np.where(np.isnan(self.gibbs), np.inf, self.gibbs)
+        low = g.min(axis=0)
+        return np.where(np.isinf(low), np.nan, low)
+
+    @property
+    def stable_phase(self) -> np.ndarray:
+        """The name of the phase of least Gibbs energy at each grid point (``""`` where no
+        phase exists)."""
+        g = np.where(np.isnan(self.gibbs), np.inf, self.gibbs)
+        k = g.argmin(axis=0)
+        names = np.array(self.phases + ("",))
+        return np.where(np.isinf(g.min(axis=0)), "", names[k])
+
+    @property
+    def transitions(self) -> Tuple[Crossing, ...]:
+        """The stable crossings (phase transitions), in grid order."""
+        return tuple(c for c in self.crossings if c.stable)
+
+    def to_dataframe(self) -> "pandas.DataFrame":
+        """One row per grid point: T (K), p (Pa), g of each phase (J/mol) and the stable
+        phase (needs pandas)."""
+        pd = _pandas()
+        cols: Dict[str, Any] = {"temperature": self.temperature, "pressure": self.pressure}
+        for k, ph in enumerate(self.phases):
+            cols[f"gibbs_{ph}"] = self.gibbs[k]
+        cols["stable_phase"] = self.stable_phase
+        return pd.DataFrame(cols)
+
+
+# ---------------------------------------------------------------------------------------------
+# The PT flash with solids
+
+
+@dataclass(frozen=True, eq=False)
+class SolidPhase(_Record):
+    """A solid phase present in a flash with solids.
+
+    Attributes
+    ----------
+    candidate : int
+        Index of the solid in the list passed in.
+    component : int
+        The fluid component index of its species.
+    species : str
+        The species.
+    amount : float
+        Amount, mol.
+    fraction : float
+        Amount over the total feed amount.
+    molar_volume : float
+        m3/mol.
+    ln_fugacity : float
+        ln of the solid's fugacity, ln(f/Pa).
+    """
+
+    candidate: int
+    component: int
+    species: str
+    amount: float
+    fraction: float
+    molar_volume: float
+    ln_fugacity: float
+
+
+@dataclass(frozen=True, eq=False)
+class SolidMargin(_Record):
+    """The stability margin of one candidate solid at the result of a flash with solids.
+
+    Attributes
+    ----------
+    candidate : int
+        Index of the solid in the list passed in.
+    species : str
+        The species.
+    present : bool
+        Whether the solid is present.
+    evaluated : bool
+        Whether the solid model could be evaluated at (T, p); a solid outside its range is
+        not considered, and its other values are 0.
+    ln_fugacity_solid : float
+        ln f of the pure solid, ln(f/Pa).
+    ln_fugacity_fluid : float
+        ln f of the species in the fluid, ln(f/Pa) (−1e300 when the species is absent from
+        the fluid).
+    margin : float
+        ln f_solid − ln f_fluid (dimensionless): ≥ 0 for a stable absent solid, ≈ 0 (within
+        the tolerance) for a present one. When a one-species feed is entirely solid, the
+        fluid is the one the solid displaced, and the margin of the present solid is < 0.
+    """
+
+    candidate: int
+    species: str
+    present: bool
+    evaluated: bool
+    ln_fugacity_solid: float
+    ln_fugacity_fluid: float
+    margin: float
+
+
+@dataclass(frozen=True, eq=False)
+class SolidFlashDiagnostics(_Record):
+    """How a flash with solids reached its answer.
+
+    Attributes
+    ----------
+    active_set_iterations, inner_iterations, fluid_flashes : int
+        Active-set iterations, inner (false-position) iterations, fluid flashes performed.
+    residual : float
+        max |ln f_fluid − ln f_solid| over the present solids (dimensionless).
+    min_absent_margin : float
+        The least margin over the absent evaluated solids (1e300 if there is none).
+    """
+
+    active_set_iterations: int
+    inner_iterations: int
+    fluid_flashes: int
+    residual: float
+    min_absent_margin: float
+
+
+@dataclass(frozen=True, eq=False)
+class SolidFlashResult(_Record):
+    """Result of a PT flash with pure solid phases.
+
+    Attributes
+    ----------
+    temperature, pressure : float
+        K, Pa.
+    feed : numpy.ndarray
+        Total feed amounts, mol.
+    fluid : FlashResult or None
+        The flash of what remains fluid (its ``feed`` is the fluid amounts and its phase
+        fractions are relative to them, with its own stability certificate); None when
+        everything froze.
+    fluid_fractions : numpy.ndarray
+        The fluid phases' amounts over the total feed amount, in the order of
+        ``fluid.phases``.
+    solids : tuple of SolidPhase
+        The solids present.
+    margins : tuple of SolidMargin
+        Every candidate's margin, in the order passed in: the solids' stability certificate.
+    diagnostics : SolidFlashDiagnostics
+        Iterations and residuals.
+    """
+
+    temperature: float
+    pressure: float
+    feed: np.ndarray
+    fluid: Optional[FlashResult]
+    fluid_fractions: np.ndarray
+    solids: Tuple[SolidPhase, ...]
+    margins: Tuple[SolidMargin, ...]
+    diagnostics: SolidFlashDiagnostics
+
+    @property
+    def num_phases(self) -> int:
+        """Number of phases present, fluid and solid."""
+        return len(self.solids) + (self.fluid.num_phases if self.fluid is not None else 0)
+
+    @property
+    def solid_fraction(self) -> float:
+        """Amount of all solids over the feed amount."""
+        return float(sum(s.fraction for s in self.solids))
+
+    @property
+    def fluid_amount(self) -> float:
+        """Amount remaining fluid, mol."""
+        return float(self.fluid.feed.sum()) if self.fluid is not None else 0.0
+
+    @property
+    def phase_kinds(self) -> Tuple[str, ...]:
+        """The kinds of all phases present: the fluid phases, then ``"solid"`` per solid."""
+        fluid = tuple(p.kind for p in self.fluid.phases) if self.fluid is not None else ()
+        return fluid + ("solid",) * len(self.solids)
+
+    def solid_amounts(self) -> np.ndarray:
+        """Amount (mol) of each candidate solid, in the order passed in (0 where absent)."""
+        out = np.zeros(len(self.margins))
+        for s in self.solids:
+            out[s.candidate] = s.amount
+        return out

@@ -224,3 +224,21 @@ fn traces_over_coarse_grids() {
         );
     }
 }
+
+/// The triple-point search stays inside the solid model's range: from 272 K the Newton
+/// iteration would step past 273.16 K, where IAPWS-06 ends, and still finds 273.16 K; a
+/// guess outside the range starts from its edge.
+#[test]
+fn triple_point_from_guesses_near_the_solids_range_end() {
+    let water = Iapws95::new();
+    let ice = IceIh::new();
+    let set = PurePhases::new(&water, 0, vec![&ice as &dyn SolidModel]).unwrap();
+    for guess in [250.0, 272.0, 273.2, 280.0] {
+        let tp = set.triple_point(0, Some(guess)).unwrap();
+        assert!(
+            (tp.temperature - 273.16).abs() < 1e-5,
+            "from {guess} K: T_t = {}",
+            tp.temperature
+        );
+    }
+}

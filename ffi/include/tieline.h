@@ -567,7 +567,9 @@ typedef struct tl_solid_phase {
   double ln_fugacity_fluid;
   /**
    * Stability margin ln f_solid − ln f_fluid (dimensionless): ≥ 0 for a stable absent
-   * solid, ≈ 0 for a present one.
+   * solid, ≈ 0 for a present one in equilibrium with a fluid, < 0 when a feed of that
+   * species alone froze entirely (no fluid remains; `ln_fugacity_fluid` is then that of the
+   * feed flashed as a fluid at (T, p)).
    */
   double margin;
 } tl_solid_phase;

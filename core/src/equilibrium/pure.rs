@@ -562,6 +562,9 @@ impl<'a, F: FluidModel + ?Sized> PurePhases<'a, F> {
             .ok_or_else(|| Error::invalid("solid", format!("index {solid} of {}", self.solids.len())))?;
         let mut t = t_guess.unwrap_or(sm.triple_point_estimate().0);
         check::temperature(t)?;
+        // The triple point lies where the solid model is valid: iterate inside its range.
+        let range = sm.validity();
+        t = t.clamp(range.t_min, range.t_max);
         let tol = 1e-13;
         let mut resid = f64::INFINITY;
         let mut p_guess = None;
@@ -587,7 +590,14 @@ impl<'a, F: FluidModel + ?Sized> PurePhases<'a, F> {
             // d(g_s − g_l)/dT along p_σ(T) = −(s_s − s_l) + (v_s − v_l) dp_σ/dT.
             let df = -(ps.entropy - pl.entropy) + (ps.molar_volume - pl.molar_volume) * lv.clapeyron_slope;
             let step = (-f * rt / df).clamp(-0.05 * t, 0.05 * t);
-            t += step;
+            let next = (t + step).clamp(range.t_min, range.t_max);
+            if next == t && next != t + step {
+                return Err(Error::NoSolution(format!(
+                    "the triple point lies outside the solid model's range [{}, {}] K",
+                    range.t_min, range.t_max
+                )));
+            }
+            t = next;
         }
         Err(Error::not_converged(
             "solid–liquid–vapour triple point",

@@ -111,7 +111,10 @@ pub struct SolidMargin {
     /// ln f_j of the species in the fluid, ln(f/Pa) (−∞ is reported as −1e300 when the
     /// species is absent from the fluid).
     pub ln_fugacity_fluid: f64,
-    /// ln f_j^s − ln f_j^fluid: ≥ 0 for an absent solid that is stable, ≈ 0 for a present one.
+    /// ln f_j^s − ln f_j^fluid: ≥ 0 for an absent solid that is stable, ≈ 0 for a present
+    /// one in equilibrium with a fluid, and < 0 when a feed of that species alone froze
+    /// entirely (no fluid remains; ln f_j^fluid is then that of the feed flashed as a fluid
+    /// at (T, p), above the solid's).
     pub margin: f64,
 }
 

@@ -275,10 +275,10 @@ class PureSubstance:
     def triple_point(self, solid: Optional[str] = None, *, t_guess: Optional[float] = None) -> TriplePoint:
         """The triple point where ``solid`` (a phase name; by default the only solid of the
         set), the liquid and the vapour coexist, started from ``t_guess`` (K; default the
-        solid's triple-point estimate). Each step follows the liquid–vapour curve; a step
-        that leaves the solid's range of validity ends the search with
-        :class:`NoSolutionError`. Ice Ih's triple point lies at the upper end of its range
-        (273.16 K), which is where the default start puts it.
+        solid's triple-point estimate). Each step follows the liquid–vapour curve and stays
+        inside the solid's range of validity (a guess outside it starts from its edge); a
+        triple point beyond that range ends the search with :class:`NoSolutionError`. Ice
+        Ih's triple point lies at the upper end of its range (273.16 K).
 
         Raises
         ------

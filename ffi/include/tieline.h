@@ -267,6 +267,12 @@ typedef struct tl_flash_options {
    * Options of the stability tests inside the flash.
    */
   struct tl_stability_options stability;
+  /**
+   * Most fluid phases a result may have: 2 (default; a state with a third phase is
+   * `TL_STATUS_NO_SOLUTION`) or 3 (a vapour and two liquids, found when the certificate of
+   * the best two-phase split reveals the third; needs `certificate`).
+   */
+  size_t max_phases;
 } tl_flash_options;
 
 /**

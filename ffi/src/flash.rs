@@ -26,6 +26,10 @@ pub struct tl_flash_options {
     pub certificate: bool,
     /// Options of the stability tests inside the flash.
     pub stability: tl_stability_options,
+    /// Most fluid phases a result may have: 2 (default; a state with a third phase is
+    /// `TL_STATUS_NO_SOLUTION`) or 3 (a vapour and two liquids, found when the certificate of
+    /// the best two-phase split reveals the third; needs `certificate`).
+    pub max_phases: usize,
 }
 
 /// Options of the stability test. Initialise with `tl_stability_options_default`.
@@ -68,6 +72,7 @@ impl tl_flash_options {
             negative_flash: o.negative_flash,
             certificate: o.certificate,
             stability: tl_stability_options::from_core(&o.stability),
+            max_phases: o.max_phases,
         }
     }
 
@@ -79,6 +84,7 @@ impl tl_flash_options {
             negative_flash: self.negative_flash,
             certificate: self.certificate,
             stability: self.stability.to_core(),
+            max_phases: self.max_phases,
         }
     }
 }

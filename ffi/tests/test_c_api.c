@@ -148,6 +148,40 @@ int main(void) {
   OK(tl_flash(model, 300.0, 5.0e6, zv, 2, NULL, res));
   CHECK(tl_result_tie_line(res, &beta, NULL, 0, NULL, 0) == TL_STATUS_NOT_AVAILABLE, "no tie line by default");
 
+  /* Three phases: methane, n-hexane and water (PR, k_ij = 0.5 water-hydrocarbon, common
+     practice, no source) at 300 K, 2 MPa split into a vapour, a hexane-rich and an aqueous
+     liquid when three phases are allowed; by default that state is a typed error. */
+  {
+    const tl_model *mhw = NULL;
+    OK(tl_model_from_json("{\"model\": \"cubic\", \"kind\": \"peng_robinson\", "
+                          "\"components\": [\"methane\", \"n-hexane\", \"water\"], "
+                          "\"kij\": [[0, 2, 0.5], [1, 2, 0.5]]}",
+                          &mhw));
+    double z3[3] = {0.3, 0.2, 0.5};
+    CHECK(tl_flash(mhw, 300.0, 2e6, z3, 3, NULL, res) == TL_STATUS_NO_SOLUTION, "a third phase is reported by default");
+    OK(tl_flash_options_default(&opts));
+    CHECK(opts.max_phases == 2, "two phases by default");
+    opts.max_phases = 3;
+    OK(tl_flash(mhw, 300.0, 2e6, z3, 3, &opts, res));
+    OK(tl_result_num_phases(res, &np));
+    CHECK(np == 3, "three phases");
+    tl_phase_info pi[3];
+    double sum_w = 0, xw[3];
+    for (size_t k = 0; k < 3 && np == 3; ++k) {
+      double comp[3];
+      OK(tl_result_phase(res, k, &pi[k]));
+      OK(tl_result_phase_composition(res, k, comp, 3));
+      xw[k] = comp[2];
+      sum_w += pi[k].fraction * comp[2];
+    }
+    CHECK(np == 3 && pi[0].kind == TL_PHASE_KIND_VAPOR && pi[1].kind == TL_PHASE_KIND_LIQUID2 &&
+              pi[2].kind == TL_PHASE_KIND_LIQUID, "vapour, lighter liquid, denser liquid");
+    CHECK(np == 3 && xw[2] > 0.999 && fabs(sum_w - 0.5) < 1e-12, "aqueous liquid; water balance");
+    opts.max_phases = 4;
+    CHECK(tl_flash(mhw, 300.0, 2e6, z3, 3, &opts, res) == TL_STATUS_INVALID_INPUT, "max_phases 4 refused");
+    tl_model_free(mhw);
+  }
+
   /* Stability, saturation, bubble and dew points, properties at (T, p, n). */
   OK(tl_stability(model, 300.0, 5.0e6, z, 2, NULL, res));
   tl_stability_summary ss;

@@ -665,7 +665,8 @@ pub struct PyFlashOptions {
 #[pymethods]
 impl PyFlashOptions {
     #[new]
-    #[pyo3(signature = (tolerance=None, max_ss_iterations=None, max_newton_iterations=None, certificate=None, negative_flash=None, stability_tolerance=None))]
+    #[pyo3(signature = (tolerance=None, max_ss_iterations=None, max_newton_iterations=None, certificate=None, negative_flash=None, stability_tolerance=None, max_phases=None))]
+    #[allow(clippy::too_many_arguments)]
     fn new(
         py: Python<'_>,
         tolerance: Option<f64>,
@@ -674,8 +675,15 @@ impl PyFlashOptions {
         certificate: Option<bool>,
         negative_flash: Option<bool>,
         stability_tolerance: Option<f64>,
+        max_phases: Option<usize>,
     ) -> PyResult<Self> {
         let mut o = FlashOptions::default();
+        if let Some(k) = max_phases {
+            if !(2..=3).contains(&k) {
+                return Err(invalid(py, "max_phases", &format!("{k}; 2 or 3 is required")));
+            }
+            o.max_phases = k;
+        }
         if let Some(x) = tolerance {
             if !(x > 0.0 && x < 1e-2) {
                 return Err(invalid(

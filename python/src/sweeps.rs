@@ -134,15 +134,13 @@ struct FlashBlock {
     failures: Failures,
 }
 
-/// Maximum phases per point in the flat arrays.
-const SLOTS: usize = 2;
-
 impl FlashBlock {
-    fn push(&mut self, i: usize, nc: usize, r: Result<&FlashResult, Error>) {
+    /// Appends point `i`, in `slots` phase slots (the options' `max_phases`).
+    fn push(&mut self, i: usize, nc: usize, slots: usize, r: Result<&FlashResult, Error>) {
         match r {
-            Ok(r) if r.phases.len() <= SLOTS => {
+            Ok(r) if r.phases.len() <= slots => {
                 self.num_phases.push(r.phases.len() as i64);
-                for s in 0..SLOTS {
+                for s in 0..slots {
                     match r.phases.get(s) {
                         Some(ph) => {
                             self.kind.push(kind_code(ph.kind));
@@ -173,13 +171,13 @@ impl FlashBlock {
                     Ok(r) => Error::invalid(
                         "phases",
                         format!(
-                            "{} phases found; vectorised results hold at most {SLOTS}",
+                            "{} phases found; vectorised results hold at most {slots}",
                             r.phases.len()
                         ),
                     ),
                 };
                 self.num_phases.push(0);
-                for _ in 0..SLOTS {
+                for _ in 0..slots {
                     self.empty_slot(nc);
                 }
                 for v in [
@@ -280,6 +278,7 @@ pub fn flash_sweep<'py>(
         nc,
     };
     let opts = options.inner;
+    let slots = opts.max_phases;
     let nblocks = npts.div_ceil(block);
     let blocks = parallel::run(py, nblocks, npts, threads, progress.as_ref(), |b, ctl| {
         let mut fb = FlashBlock::default();
@@ -291,7 +290,7 @@ pub fn flash_sweep<'py>(
                 break;
             }
             let r = ctx.flash(m, pts.a[i], pts.b[i], pts.feed(i), &opts);
-            fb.push(i, nc, r.map_err(|e| e.clone()));
+            fb.push(i, nc, slots, r.map_err(|e| e.clone()));
             ctl.advance(1);
         }
         fb
@@ -305,13 +304,13 @@ pub fn flash_sweep<'py>(
     })?;
     let d = PyDict::new(py);
     d.set_item("num_phases", PyArray1::from_vec(py, all.num_phases))?;
-    d.set_item("kind", arr2i8(py, npts, SLOTS, all.kind)?)?;
-    d.set_item("fraction", arr2(py, npts, SLOTS, all.fraction)?)?;
-    d.set_item("amount", arr2(py, npts, SLOTS, all.amount)?)?;
-    d.set_item("composition", arr2(py, npts, SLOTS * nc, all.composition)?)?;
-    d.set_item("molar_volume", arr2(py, npts, SLOTS, all.molar_volume)?)?;
-    d.set_item("z", arr2(py, npts, SLOTS, all.z)?)?;
-    d.set_item("ln_phi", arr2(py, npts, SLOTS * nc, all.ln_phi)?)?;
+    d.set_item("kind", arr2i8(py, npts, slots, all.kind)?)?;
+    d.set_item("fraction", arr2(py, npts, slots, all.fraction)?)?;
+    d.set_item("amount", arr2(py, npts, slots, all.amount)?)?;
+    d.set_item("composition", arr2(py, npts, slots * nc, all.composition)?)?;
+    d.set_item("molar_volume", arr2(py, npts, slots, all.molar_volume)?)?;
+    d.set_item("z", arr2(py, npts, slots, all.z)?)?;
+    d.set_item("ln_phi", arr2(py, npts, slots * nc, all.ln_phi)?)?;
     d.set_item("vapor_fraction", PyArray1::from_vec(py, all.vapor_fraction))?;
     d.set_item("residual", PyArray1::from_vec(py, all.residual))?;
     d.set_item("certificate", PyArray1::from_vec(py, all.certificate))?;

@@ -11,13 +11,18 @@
 //!    Levenberg shift and a backtracking line search (quadratic convergence);
 //! 3. the split of least G is kept, and a certificate is computed: the minimum tangent-plane
 //!    distance from an independent stability test of a converged phase (≥ 0 up to round-off
-//!    when the result is the global minimum among two-phase states).
+//!    when the result is the global minimum among two-phase states);
+//! 4. if the certificate still finds a lower tangent plane after one retry, the state has a
+//!    third phase: with [`FlashOptions::max_phases`] = 3 its stationary point joins the two
+//!    phases of the split and the three-phase problem is solved (see `multiphase`), and the
+//!    answer is certified in turn; otherwise the flash reports `Error::NoSolution`.
 //!
 //! A [`FlashContext`] keeps the workspaces and the previous solution: its warm start begins
 //! from the previous K-values and skips the feed stability test (simulators' time-stepping
 //! use), falling back to the cold path whenever the warm split collapses.
 
 use super::EquilibriumWork;
+use super::multiphase::{ThreeOutcome, ThreePhase, three_phase};
 use super::rachford_rice;
 use super::stability::{StabilityOptions, StabilityResult, stability_with};
 use crate::error::{Error, Result, check};
@@ -41,6 +46,10 @@ pub struct FlashOptions {
     pub certificate: bool,
     /// Options of the stability tests.
     pub stability: StabilityOptions,
+    /// Most fluid phases the result may have: 2, or 3 to add a third phase when the
+    /// certificate of the best two-phase split finds a lower tangent plane (needs
+    /// `certificate`). With 2 such a state is reported as `Error::NoSolution`.
+    pub max_phases: usize,
 }
 
 impl Default for FlashOptions {
@@ -52,6 +61,7 @@ impl Default for FlashOptions {
             negative_flash: false,
             certificate: true,
             stability: StabilityOptions::default(),
+            max_phases: 2,
         }
     }
 }
@@ -62,6 +72,12 @@ impl FlashOptions {
             return Err(Error::invalid(
                 "tolerance",
                 format!("{}; a value in (0, 1e-2) is required", self.tolerance),
+            ));
+        }
+        if !(2..=3).contains(&self.max_phases) {
+            return Err(Error::invalid(
+                "max_phases",
+                format!("{}; 2 or 3 is required", self.max_phases),
             ));
         }
         if !(self.stability.tolerance > 0.0 && self.stability.tolerance < 1e-2) {
@@ -277,6 +293,8 @@ pub struct FlashContext {
     cert: StabilityResult,
     prev_lnk: Vec<f64>,
     prev_two_phase: bool,
+    /// The three-phase split of this call, when one was found.
+    three: Option<Box<ThreePhase>>,
     /// Whether `ws.phi_feed` holds ln φ of this call's feed (set by the feed's stability test).
     feed_evaluated: bool,
     result: FlashResult,
@@ -348,6 +366,7 @@ impl FlashContext {
         let mut diag = Diagnostics::default();
         let mut found = false;
         self.feed_evaluated = false;
+        self.three = None;
         if self.prev_two_phase {
             self.ws.lnk.copy_from_slice(&self.prev_lnk);
             let out = self.two_phase(model, t, p, opts, true, &mut diag)?;
@@ -457,6 +476,9 @@ impl FlashContext {
             diag.certificate_iterations += self.cert.iterations;
             diag.certificate = Some(self.cert.min_tpd);
             if self.cert.stable || attempt == 1 {
+                if !self.cert.stable && opts.max_phases >= 3 {
+                    return self.add_third_phase(model, t, p, opts, diag);
+                }
                 if !self.cert.stable {
                     return Err(Error::NoSolution(format!(
                         "at T = {t} K, p = {p} Pa the least-Gibbs state has more than two phases \
@@ -565,6 +587,64 @@ impl FlashContext {
         normalise(&mut s.x);
         normalise(&mut s.y);
         true
+    }
+
+    /// The certificate of the best two-phase split found a lower tangent plane at the
+    /// stationary point `cert.points[0]`: add it as a third phase to the split's two, solve
+    /// the three-phase problem, and certify the answer by a stability test of its largest
+    /// phase (all phases share the tangent plane).
+    fn add_third_phase<M: FluidModel + ?Sized>(
+        &mut self,
+        model: &M,
+        t: f64,
+        p: f64,
+        opts: &FlashOptions,
+        diag: &mut Diagnostics,
+    ) -> Result<()> {
+        let tpd = self.cert.min_tpd;
+        let w = self.cert.points[0].composition.clone();
+        let z = self.ws.z.clone();
+        let (x, y) = (self.best.x.clone(), self.best.y.clone());
+        diag.splits_tried += 1;
+        let out = three_phase(
+            model,
+            t,
+            p,
+            &z,
+            [&y, &x, &w],
+            // Converged well below the flash tolerance, so that the certificate's
+            // tangent-plane distances at the other phases (≈ the residual) stay inside
+            // its threshold.
+            opts.tolerance * 1e-2,
+            opts.max_ss_iterations,
+            &mut self.ws.fw,
+        )?;
+        let tp = match out {
+            ThreeOutcome::Converged(tp) => tp,
+            ThreeOutcome::Collapsed => {
+                return Err(Error::NoSolution(format!(
+                    "at T = {t} K, p = {p} Pa a third phase lowers G below the best two-phase split                      (tangent-plane distance {tpd:.3e}), but the three-phase search from it collapsed"
+                )));
+            }
+        };
+        diag.ss_iterations += tp.iterations;
+        let big = (0..3).max_by(|&a, &b| tp.beta[a].total_cmp(&tp.beta[b])).unwrap_or(0);
+        let sopts = StabilityOptions {
+            early_exit: true,
+            ..opts.stability
+        };
+        let probe = tp.x[big].clone();
+        stability_with(model, t, p, &probe, &sopts, &[], &mut self.ws, &mut self.cert)?;
+        diag.certificate_iterations += self.cert.iterations;
+        diag.certificate = Some(self.cert.min_tpd);
+        if !self.cert.stable {
+            return Err(Error::NoSolution(format!(
+                "at T = {t} K, p = {p} Pa the least-Gibbs state has more than three phases                  (a fourth phase lowers G: tangent-plane distance {:.3e})",
+                self.cert.min_tpd
+            )));
+        }
+        self.three = Some(tp);
+        Ok(())
     }
 
     /// Two-phase split from `ws.lnk`. On `Converged`, `self.split` holds the split and
@@ -984,7 +1064,14 @@ impl FlashContext {
         r.feed.clear();
         r.feed.extend_from_slice(n);
         r.tie_line = None;
-        let count = if two { 2 } else { 1 };
+        let three = self.three.take();
+        let count = if three.is_some() {
+            3
+        } else if two {
+            2
+        } else {
+            1
+        };
         r.phases.truncate(count);
         while r.phases.len() < count {
             r.phases.push(Phase {
@@ -993,7 +1080,34 @@ impl FlashContext {
                 ..Default::default()
             });
         }
-        if two {
+        if let Some(tp) = three {
+            diag.residual = tp.residual;
+            diag.gibbs = tp.gibbs;
+            // Lightest first: the vapour (gas-like by volume, or above its pseudo-critical
+            // temperature by Kay's rule as for two phases), then the lighter liquid (Liquid2)
+            // and the denser one (Liquid).
+            let mut order = [0usize, 1, 2];
+            order.sort_by(|&a, &b| tp.phi[b].v.total_cmp(&tp.phi[a].v));
+            let light = order[0];
+            let kay: f64 = (0..nc).map(|i| tp.x[light][i] * model.critical_constants(i).tc).sum();
+            if tp.phi[light].liquid_like && t < kay {
+                return Err(Error::NoSolution(format!(
+                    "at T = {t} K, p = {p} Pa the least-Gibbs state has three liquid phases,                      which the result does not represent"
+                )));
+            }
+            let kinds = [PhaseKind::Vapor, PhaseKind::Liquid2, PhaseKind::Liquid];
+            for (slot, &k) in order.iter().enumerate() {
+                let ph = &mut r.phases[slot];
+                ph.kind = Some(kinds[slot]);
+                ph.fraction = tp.beta[k];
+                ph.amount = tp.beta[k] * ntot;
+                ph.composition.copy_from_slice(&tp.x[k]);
+                ph.ln_phi.copy_from_slice(&tp.phi[k].ln_phi);
+                ph.molar_volume = tp.phi[k].v;
+                ph.z = tp.phi[k].z;
+            }
+            self.prev_two_phase = false;
+        } else if two {
             let s = &self.best;
             diag.residual = s.residual;
             diag.gibbs = s.gibbs;

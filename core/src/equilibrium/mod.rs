@@ -8,6 +8,7 @@
 
 pub mod batch;
 pub mod flash;
+pub(crate) mod multiphase;
 pub mod pure;
 pub mod rachford_rice;
 pub mod saturation;

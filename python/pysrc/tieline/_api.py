@@ -169,8 +169,13 @@ def _flash_options(
     max_newton_iterations: Optional[int],
     certificate: bool,
     negative_flash: bool,
+    max_phases: int = 2,
 ) -> _core.FlashOptions:
-    return _core.FlashOptions(tolerance, max_ss_iterations, max_newton_iterations, certificate, negative_flash)
+    if isinstance(max_phases, bool) or not isinstance(max_phases, numbers.Integral) or max_phases not in (2, 3):
+        raise _invalid("max_phases", f"{max_phases!r}; 2 or 3 is required")
+    return _core.FlashOptions(
+        tolerance, max_ss_iterations, max_newton_iterations, certificate, negative_flash, None, int(max_phases)
+    )
 
 
 @overload
@@ -185,6 +190,7 @@ def flash(
     negative_flash: bool = ...,
     max_ss_iterations: Optional[int] = ...,
     max_newton_iterations: Optional[int] = ...,
+    max_phases: int = ...,
     block: int = ...,
     threads: Optional[int] = ...,
     progress: Optional[Progress] = ...,
@@ -202,6 +208,7 @@ def flash(
     negative_flash: bool = ...,
     max_ss_iterations: Optional[int] = ...,
     max_newton_iterations: Optional[int] = ...,
+    max_phases: int = ...,
     block: int = ...,
     threads: Optional[int] = ...,
     progress: Optional[Progress] = ...,
@@ -218,6 +225,7 @@ def flash(
     negative_flash: bool = False,
     max_ss_iterations: Optional[int] = None,
     max_newton_iterations: Optional[int] = None,
+    max_phases: int = 2,
     block: int = DEFAULT_BLOCK,
     threads: Optional[int] = None,
     progress: Optional[Progress] = None,
@@ -244,6 +252,12 @@ def flash(
         Also report the tie-line extension of single-phase feeds (scalar calls).
     max_ss_iterations, max_newton_iterations : int, optional
         Iteration limits of successive substitution and of Newton's method.
+    max_phases : {2, 3}
+        Most fluid phases per result. With 2 (default) a state where a third phase lowers G
+        raises :class:`NoSolutionError`; with 3 it is returned as a vapour, a lighter liquid
+        (``"liquid2"``) and a denser liquid, found when the certificate of the best
+        two-phase split reveals the third phase (so ``certificate`` must be on). Vectorised
+        results then hold ``max_phases`` phase slots per point.
     block : int
         Vectorised calls: points are taken in consecutive blocks of this many, each solved
         by one context that warm-starts from point to point (so order a sweep along T or p).
@@ -272,7 +286,10 @@ def flash(
         The solver did not converge (its diagnostics are attributes of the exception).
     """
     _check_model(model)
-    opts = _flash_options(tolerance, max_ss_iterations, max_newton_iterations, bool(certificate), bool(negative_flash))
+    opts = _flash_options(
+        tolerance, max_ss_iterations, max_newton_iterations, bool(certificate), bool(negative_flash), max_phases
+    )
+    slots = int(max_phases)
     if _is_scalar(temperature) and _is_scalar(pressure):
         z = _feed(model, feed)
         if z.ndim == 1:
@@ -294,13 +311,13 @@ def flash(
         feed=stored,
         num_phases=raw["num_phases"].reshape(shape),
         vapor_fraction=raw["vapor_fraction"].reshape(shape),
-        phase_kind=_KINDS[raw["kind"]].reshape(shape + (2,)),
-        phase_fraction=raw["fraction"].reshape(shape + (2,)),
-        phase_amount=raw["amount"].reshape(shape + (2,)),
-        molar_volume=raw["molar_volume"].reshape(shape + (2,)),
-        z=raw["z"].reshape(shape + (2,)),
-        composition=raw["composition"].reshape(shape + (2, nc)),
-        ln_phi=raw["ln_phi"].reshape(shape + (2, nc)),
+        phase_kind=_KINDS[raw["kind"]].reshape(shape + (slots,)),
+        phase_fraction=raw["fraction"].reshape(shape + (slots,)),
+        phase_amount=raw["amount"].reshape(shape + (slots,)),
+        molar_volume=raw["molar_volume"].reshape(shape + (slots,)),
+        z=raw["z"].reshape(shape + (slots,)),
+        composition=raw["composition"].reshape(shape + (slots, nc)),
+        ln_phi=raw["ln_phi"].reshape(shape + (slots, nc)),
         residual=raw["residual"].reshape(shape),
         certificate=raw["certificate"].reshape(shape),
         gibbs=raw["gibbs"].reshape(shape),

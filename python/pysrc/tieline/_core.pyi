@@ -99,6 +99,7 @@ class FlashOptions:
         certificate: Optional[bool] = None,
         negative_flash: Optional[bool] = None,
         stability_tolerance: Optional[float] = None,
+        max_phases: Optional[int] = None,
     ) -> FlashOptions: ...
     def to_dict(self) -> Dict[str, Any]: ...
 

@@ -525,11 +525,11 @@ class FlashSweep(_Record):
         Phases present at each point (0 where the point failed).
     vapor_fraction : numpy.ndarray
         Vapour amount over feed amount.
-    phase_kind : numpy.ndarray of str, ``shape + (2,)``
+    phase_kind : numpy.ndarray of str, ``shape + (max_phases,)`` (2 unless ``max_phases=3``)
         ``"vapor"``, ``"liquid"``, ``"liquid2"`` or ``""`` per slot.
-    phase_fraction, phase_amount, molar_volume, z : numpy.ndarray, ``shape + (2,)``
+    phase_fraction, phase_amount, molar_volume, z : numpy.ndarray, ``shape + (max_phases,)`` (2 unless ``max_phases=3``)
         Phase fraction, amount (mol), molar volume (m3/mol) and compressibility per slot.
-    composition, ln_phi : numpy.ndarray, ``shape + (2, nc)``
+    composition, ln_phi : numpy.ndarray, ``shape + (max_phases, nc)``
         Mole fractions and ln φ per slot.
     residual, certificate, gibbs : numpy.ndarray
         Final fugacity residual, stability certificate (NaN when switched off) and reduced
@@ -577,7 +577,7 @@ class FlashSweep(_Record):
 
     def _of_kind(self, kind: str) -> np.ndarray:
         mask = self.phase_kind == kind
-        first = np.where(mask[..., 0], 0, 1)
+        first = np.argmax(mask, axis=-1)
         has = mask.any(axis=-1)
         comp = np.take_along_axis(self.composition, first[..., None, None], axis=-2)[..., 0, :]
         return np.where(has[..., None], comp, np.nan)
@@ -593,7 +593,7 @@ class FlashSweep(_Record):
         return self._of_kind("liquid")
 
     def to_dataframe(self) -> "pandas.DataFrame":
-        """One row per point: T (K), p (Pa), phases, vapour fraction, then per slot k = 0, 1
+        """One row per point: T (K), p (Pa), phases, vapour fraction, then per phase slot k
         the kind, fraction, molar volume (m3/mol) and mole fractions ``x{k}_<name>``, and the
         diagnostics (needs pandas)."""
         pd = _pandas()
@@ -603,7 +603,7 @@ class FlashSweep(_Record):
             "num_phases": self.num_phases.ravel(),
             "vapor_fraction": self.vapor_fraction.ravel(),
         }
-        for k in range(2):
+        for k in range(self.phase_kind.shape[-1]):
             cols[f"kind{k}"] = self.phase_kind[..., k].ravel()
             cols[f"fraction{k}"] = self.phase_fraction[..., k].ravel()
             cols[f"molar_volume{k}"] = self.molar_volume[..., k].ravel()

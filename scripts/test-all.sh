@@ -23,6 +23,9 @@ step "command-line tool: demo and a JSON flash"
 cargo run --release --quiet -p tieline-examples --bin tieline -- demo > /dev/null
 cargo run --release --quiet -p tieline-examples --bin tieline -- flash -c methane,propane -t 250 -p 20bar -z 0.6,0.4 --json > /dev/null
 cargo run --release --quiet -p tieline-examples --bin tieline -- saturation -c water -e iapws95 -p 1atm --json > /dev/null
+# Three phases (vapour, hexane-rich and aqueous liquids) when asked for.
+cargo run --release --quiet -p tieline-examples --bin tieline -- flash -c methane,n-hexane,water \
+  --kij 0,2,0.5 --kij 1,2,0.5 -t 300 -p 20bar -z 0.3,0.2,0.5 --phases 3 --json | grep -q '"liquid2"'
 
 if [ -x ffi/run-tests.sh ]; then
   step "C ABI and C++ tests"

@@ -483,7 +483,7 @@ impl FlashContext {
                     return Err(Error::NoSolution(format!(
                         "at T = {t} K, p = {p} Pa the least-Gibbs state has more than two phases \
                          (a third phase lowers G: tangent-plane distance {:.3e}); \
-                         the two-phase flash cannot represent it",
+                         allow a third phase (max_phases = 3) to compute it",
                         self.cert.min_tpd
                     )));
                 }

@@ -70,6 +70,9 @@ enum Command {
         /// Also report the tie-line extension of a single-phase feed.
         #[arg(long)]
         negative: bool,
+        /// Most fluid phases of the answer: 2, or 3 for vapour–liquid–liquid states.
+        #[arg(long, default_value_t = 2)]
+        phases: usize,
     },
     /// Pure-component saturation: vapour pressure at T, or boiling temperature at p.
     Saturation {
@@ -358,11 +361,17 @@ fn run(cli: Cli) -> Result<String> {
     let sopts = SaturationOptions::default();
     match cli.command {
         Command::Demo { json } => demo(json),
-        Command::Flash { m, st, negative } => {
+        Command::Flash {
+            m,
+            st,
+            negative,
+            phases,
+        } => {
             let model = model(&m)?;
             let (t, p, z) = st.parse()?;
             let opts = FlashOptions {
                 negative_flash: negative,
+                max_phases: phases,
                 ..Default::default()
             };
             let r = flash_pt(&model, t, p, &z, &opts)?;

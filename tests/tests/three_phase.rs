@@ -272,3 +272,50 @@ fn grid_through_the_three_phase_region() {
     assert!(counts[3] > 100, "the grid crosses the three-phase region");
     assert!(errors.is_empty(), "{} typed errors", errors.len());
 }
+
+/// Across the water content, from just above what the hydrocarbon phases dissolve (aqueous
+/// fraction ~1e-4) to a trace of hydrocarbon in water (vapour and hexane-rich fractions
+/// ~1e-5): three phases, mass balance to 1e-12 and fugacities equal to 1e-9 everywhere.
+#[test]
+fn three_phases_from_a_trace_of_water_to_a_trace_of_hydrocarbon() {
+    let m = model(&["methane", "n-hexane", "water"]);
+    let mut fw = FugacityWork::new(3);
+    let mut out = LnPhi::new(3);
+    for zw in [0.0012, 0.002, 0.01, 0.1, 0.5, 0.9, 0.99, 0.999, 0.9999, 0.99999] {
+        let z = [0.6 * (1.0 - zw), 0.4 * (1.0 - zw), zw];
+        let r = flash_pt(&m, T, P, &z, &three()).unwrap_or_else(|e| panic!("z_w = {zw}: {e}"));
+        assert_eq!(r.phases.len(), 3, "z_w = {zw}");
+        for i in 0..3 {
+            let s: f64 = r.phases.iter().map(|p| p.fraction * p.composition[i]).sum();
+            assert!((s - z[i]).abs() < 1e-12, "z_w = {zw}, component {i}");
+        }
+        let mut lnf = Vec::new();
+        for ph in &r.phases {
+            ln_phi(
+                &m,
+                T,
+                P,
+                &ph.composition,
+                RootChoice::Stable,
+                Need::VALUES,
+                &mut fw,
+                &mut out,
+            )
+            .unwrap();
+            lnf.push(
+                (0..3)
+                    .map(|c| ph.composition[c].ln() + out.ln_phi[c])
+                    .collect::<Vec<_>>(),
+            );
+        }
+        for k in 1..3 {
+            for c in 0..3 {
+                assert!(
+                    (lnf[k][c] - lnf[0][c]).abs() < 1e-9,
+                    "z_w = {zw}, phase {k}, component {c}"
+                );
+            }
+        }
+        assert!(r.diagnostics.certificate.unwrap() >= -1e-10, "z_w = {zw}");
+    }
+}

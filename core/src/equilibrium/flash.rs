@@ -621,9 +621,15 @@ impl FlashContext {
         )?;
         let tp = match out {
             ThreeOutcome::Converged(tp) => tp,
-            ThreeOutcome::Collapsed => {
+            ThreeOutcome::Collapsed(Some([a, b])) => {
+                // A phase left: the answer may be another two-phase split, of the two phases
+                // that remained. Solve it, keep it if G falls, and certify it.
+                return self.two_phase_from(model, t, p, opts, diag, &a, &b, tpd);
+            }
+            ThreeOutcome::Collapsed(None) => {
                 return Err(Error::NoSolution(format!(
-                    "at T = {t} K, p = {p} Pa a third phase lowers G below the best two-phase split                      (tangent-plane distance {tpd:.3e}), but the three-phase search from it collapsed"
+                    "at T = {t} K, p = {p} Pa a third phase lowers G below the best two-phase split \
+                     (tangent-plane distance {tpd:.3e}), but the three-phase search from it collapsed"
                 )));
             }
         };
@@ -639,12 +645,54 @@ impl FlashContext {
         diag.certificate = Some(self.cert.min_tpd);
         if !self.cert.stable {
             return Err(Error::NoSolution(format!(
-                "at T = {t} K, p = {p} Pa the least-Gibbs state has more than three phases                  (a fourth phase lowers G: tangent-plane distance {:.3e})",
+                "at T = {t} K, p = {p} Pa the least-Gibbs state has more than three phases \
+                     (a fourth phase lowers G: tangent-plane distance {:.3e})",
                 self.cert.min_tpd
             )));
         }
         self.three = Some(tp);
         Ok(())
+    }
+
+    /// A two-phase split started from K_i = a_i/b_i, kept if its G lies below the best
+    /// split's, then certified; a certificate still negative is `Error::NoSolution`.
+    #[allow(clippy::too_many_arguments)]
+    fn two_phase_from<M: FluidModel + ?Sized>(
+        &mut self,
+        model: &M,
+        t: f64,
+        p: f64,
+        opts: &FlashOptions,
+        diag: &mut Diagnostics,
+        a: &[f64],
+        b: &[f64],
+        tpd: f64,
+    ) -> Result<()> {
+        for i in 0..self.nc {
+            self.ws.lnk[i] = if self.ws.z[i] > 0.0 { (a[i] / b[i]).ln() } else { 0.0 };
+        }
+        diag.splits_tried += 1;
+        if let Ok(SplitOutcome::Converged) = self.two_phase(model, t, p, opts, false, diag)
+            && self.split.gibbs < self.best.gibbs
+        {
+            self.best.copy_from(&self.split);
+        }
+        let sopts = StabilityOptions {
+            early_exit: true,
+            ..opts.stability
+        };
+        let x = self.best.x.clone();
+        stability_with(model, t, p, &x, &sopts, &[], &mut self.ws, &mut self.cert)?;
+        diag.certificate_iterations += self.cert.iterations;
+        diag.certificate = Some(self.cert.min_tpd);
+        if self.cert.stable {
+            return Ok(());
+        }
+        Err(Error::NoSolution(format!(
+            "at T = {t} K, p = {p} Pa a third phase lowers G below the best two-phase split \
+             (tangent-plane distance {tpd:.3e}), but neither a three-phase split nor the \
+             two-phase split left when a phase vanished is stable"
+        )))
     }
 
     /// Two-phase split from `ws.lnk`. On `Converged`, `self.split` holds the split and
@@ -1092,7 +1140,8 @@ impl FlashContext {
             let kay: f64 = (0..nc).map(|i| tp.x[light][i] * model.critical_constants(i).tc).sum();
             if tp.phi[light].liquid_like && t < kay {
                 return Err(Error::NoSolution(format!(
-                    "at T = {t} K, p = {p} Pa the least-Gibbs state has three liquid phases,                      which the result does not represent"
+                    "at T = {t} K, p = {p} Pa the least-Gibbs state has three liquid phases, \
+                     which the result does not represent"
                 )));
             }
             let kinds = [PhaseKind::Vapor, PhaseKind::Liquid2, PhaseKind::Liquid];

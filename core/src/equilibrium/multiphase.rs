@@ -15,6 +15,9 @@ use crate::model::{FluidModel, FugacityWork, LnPhi, Need, RootChoice, ln_phi};
 /// Number of phases handled here.
 pub(crate) const NP: usize = 3;
 
+/// Iterations after which a phase still at β = 0 is taken as absent.
+const ABSENT_AFTER: usize = 30;
+
 /// A converged three-phase split (per mol of feed).
 #[derive(Debug, Clone, Default)]
 pub(crate) struct ThreePhase {
@@ -36,13 +39,58 @@ pub(crate) struct ThreePhase {
 pub(crate) enum ThreeOutcome {
     /// Three phases with positive fractions and distinct compositions.
     Converged(Box<ThreePhase>),
-    /// A phase fraction went to zero, or two phases merged: no three-phase state here.
-    Collapsed,
+    /// A phase fraction went to zero (with the compositions of the two phases left), or
+    /// two phases merged (`None`): no three-phase state here.
+    Collapsed(Option<[Vec<f64>; 2]>),
 }
 
 /// Minimises Q(β) over β ≥ 0 by Newton steps on the free fractions with an active set and
 /// backtracking (Q is convex). `a[i][k]` = 1/φ_ik. `beta` is the start and the answer.
 /// Returns `false` if no descent was possible (degenerate data).
+/// One sweep of exact minimisation of Q over each β_k in turn, the others fixed: Q is convex
+/// in β_k and ∂Q/∂β_k = 1 − Σ_i z_i a_ik/(E_i^(−k) + β_k a_ik) increases with β_k, is ≥ 0 at
+/// β_k = 1, so the minimiser is 0 or the root in (0, 1], found by bisection in ln β_k.
+/// Robust where Newton is badly scaled (a phase entering where E_i is tiny).
+fn coordinate_sweep(z: &[f64], a: &[[f64; NP]], beta: &mut [f64; NP]) {
+    for k in 0..NP {
+        let g = |b: f64| -> f64 {
+            let mut s = 1.0;
+            for (zi, ai) in z.iter().zip(a) {
+                if *zi > 0.0 {
+                    let e: f64 = (0..NP).filter(|&l| l != k).map(|l| beta[l] * ai[l]).sum::<f64>() + b * ai[k];
+                    s -= zi * ai[k] / e;
+                }
+            }
+            s
+        };
+        if !(g(0.0) < 0.0) {
+            beta[k] = 0.0;
+            continue;
+        }
+        let (mut lo, mut hi) = (1e-300f64, 1.0f64);
+        if g(lo) >= 0.0 {
+            beta[k] = lo;
+            continue;
+        }
+        for _ in 0..200 {
+            let mid = if hi / lo > 4.0 {
+                (lo * hi).sqrt()
+            } else {
+                0.5 * (lo + hi)
+            };
+            if g(mid) < 0.0 {
+                lo = mid;
+            } else {
+                hi = mid;
+            }
+            if hi - lo <= 1e-15 * hi {
+                break;
+            }
+        }
+        beta[k] = 0.5 * (lo + hi);
+    }
+}
+
 fn minimise_q(z: &[f64], a: &[[f64; NP]], beta: &mut [f64; NP]) -> bool {
     let q = |b: &[f64; NP]| -> f64 {
         let mut s = b.iter().sum::<f64>();
@@ -57,6 +105,10 @@ fn minimise_q(z: &[f64], a: &[[f64; NP]], beta: &mut [f64; NP]) -> bool {
         }
         s
     };
+    for _ in 0..4 {
+        coordinate_sweep(z, a, beta);
+    }
+    let mut gmax = f64::INFINITY;
     for _ in 0..100 {
         // Gradient and Hessian.
         let mut g = [1.0; NP];
@@ -76,7 +128,7 @@ fn minimise_q(z: &[f64], a: &[[f64; NP]], beta: &mut [f64; NP]) -> bool {
         }
         // Active set: a phase at β = 0 whose gradient points outward stays out.
         let free: Vec<usize> = (0..NP).filter(|&k| beta[k] > 0.0 || g[k] < 0.0).collect();
-        let gmax = free.iter().map(|&k| g[k].abs()).fold(0.0, f64::max);
+        gmax = free.iter().map(|&k| g[k].abs()).fold(0.0, f64::max);
         if gmax < 1e-15 {
             return true;
         }
@@ -145,11 +197,17 @@ fn minimise_q(z: &[f64], a: &[[f64; NP]], beta: &mut [f64; NP]) -> bool {
             t *= 0.5;
         }
         if !moved {
-            // No descent within round-off: at the minimum to working precision.
-            return gmax < 1e-10;
+            // No descent within round-off: at the minimum to working precision, or a badly
+            // scaled Newton step: one exact coordinate sweep, then on.
+            if gmax < 1e-10 {
+                return true;
+            }
+            coordinate_sweep(z, a, beta);
         }
     }
-    true
+    // An inexact minimum still serves a successive-substitution step; the converged split is
+    // accepted only with its mass balance closed (see `three_phase`).
+    gmax < 1e-6
 }
 
 /// Three-phase split of the feed `z` (mole fractions) at T (K) and p (Pa), started from
@@ -198,7 +256,10 @@ pub(crate) fn three_phase<M: FluidModel + ?Sized>(
                 tol,
             ));
         }
-        if residual < tol && beta.iter().all(|&b| b > 0.0) && it > 1 {
+        let balance = (0..nc)
+            .map(|i| ((0..NP).map(|k| beta[k] * x[k][i]).sum::<f64>() - z[i]).abs())
+            .fold(0.0, f64::max);
+        if residual < tol && balance < 1e-12 && beta.iter().all(|&b| b > 0.0) && it > 1 {
             let gibbs = (0..NP)
                 .map(|k| {
                     beta[k]
@@ -209,7 +270,7 @@ pub(crate) fn three_phase<M: FluidModel + ?Sized>(
                 })
                 .sum();
             if merged(&x) {
-                return Ok(ThreeOutcome::Collapsed);
+                return Ok(ThreeOutcome::Collapsed(None));
             }
             return Ok(ThreeOutcome::Converged(Box::new(ThreePhase {
                 beta,
@@ -233,8 +294,13 @@ pub(crate) fn three_phase<M: FluidModel + ?Sized>(
                 tol,
             ));
         }
-        if beta.iter().any(|&b| b <= 0.0) {
-            return Ok(ThreeOutcome::Collapsed);
+        // A phase at β = 0 keeps its composition x_ik ∝ z_i/(φ_ik E_i) (a trial phase) for
+        // a while: poor starting compositions can put a present phase there at first.
+        if beta.iter().any(|&b| b <= 0.0) && it > ABSENT_AFTER {
+            let left: Vec<usize> = (0..NP).filter(|&k| beta[k] > 0.0).collect();
+            return Ok(ThreeOutcome::Collapsed(
+                (left.len() == 2).then(|| [x[left[0]].clone(), x[left[1]].clone()]),
+            ));
         }
         for i in 0..nc {
             let e: f64 = (0..NP).map(|k| beta[k] * a[i][k]).sum();
@@ -249,7 +315,7 @@ pub(crate) fn three_phase<M: FluidModel + ?Sized>(
             }
         }
         if merged(&x) {
-            return Ok(ThreeOutcome::Collapsed);
+            return Ok(ThreeOutcome::Collapsed(None));
         }
     }
     Err(Error::not_converged(

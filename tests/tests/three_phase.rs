@@ -11,7 +11,7 @@
 //! O(1 − x_w); and the hydrocarbon vapour–liquid split is that of the water-free feed up to
 //! the little water dissolved in it).
 
-use tieline::equilibrium::{FlashContext, FlashOptions, flash_pt};
+use tieline::equilibrium::{FlashContext, FlashOptions, FlashResult, flash_pt};
 use tieline::model::{CubicEos, CubicKind, FugacityWork, LnPhi, Need, PhaseKind, RootChoice, ln_phi};
 use tieline::substance::DataBank;
 use tieline_validation::pinned;
@@ -35,6 +35,48 @@ fn three() -> FlashOptions {
     FlashOptions {
         max_phases: 3,
         ..FlashOptions::default()
+    }
+}
+
+/// ln f_i (ln Pa up to the common ln p) of every phase of `r`, recomputed from its
+/// composition by an independent fugacity evaluation.
+fn ln_fugacities(m: &CubicEos, t: f64, p: f64, r: &FlashResult) -> Vec<Vec<f64>> {
+    let nc = r.feed.len();
+    let mut fw = FugacityWork::new(nc);
+    let mut out = LnPhi::new(nc);
+    r.phases
+        .iter()
+        .map(|ph| {
+            ln_phi(
+                m,
+                t,
+                p,
+                &ph.composition,
+                RootChoice::Stable,
+                Need::VALUES,
+                &mut fw,
+                &mut out,
+            )
+            .unwrap();
+            (0..nc).map(|c| ph.composition[c].ln() + out.ln_phi[c]).collect()
+        })
+        .collect()
+}
+
+/// Every component's ln f equal in all phases to `tol`.
+fn assert_equal_fugacities(lnf: &[Vec<f64>], tol: f64, what: &str) {
+    for (k, row) in lnf.iter().enumerate().skip(1) {
+        for (c, v) in row.iter().enumerate() {
+            assert!((v - lnf[0][c]).abs() < tol, "{what}: ln f of {c} in phase {k}: {lnf:?}");
+        }
+    }
+}
+
+/// Σ_k β_k x_ik = z_i to 1e-12.
+fn assert_mass_balance(r: &FlashResult, z: &[f64], what: &str) {
+    for (i, zi) in z.iter().enumerate() {
+        let s: f64 = r.phases.iter().map(|p| p.fraction * p.composition[i]).sum();
+        assert!((s - zi).abs() < 1e-12, "{what}: component {i}: {s} vs {zi}");
     }
 }
 
@@ -62,44 +104,15 @@ fn methane_hexane_water_splits_into_three_phases() {
         "the denser liquid is water: {:?}",
         aq.composition
     );
-    // Mass balance.
-    for i in 0..3 {
-        let s: f64 = r.phases.iter().map(|p| p.fraction * p.composition[i]).sum();
-        assert!((s - z[i]).abs() < 1e-12, "component {i}: {s} vs {}", z[i]);
-    }
+    assert_mass_balance(&r, &z, "z_w = 0.5");
     // Equal fugacities, recomputed from the phase compositions.
-    let mut fw = FugacityWork::new(3);
-    let mut out = LnPhi::new(3);
-    let mut lnf = [[0.0; 3]; 3];
-    for (k, ph) in r.phases.iter().enumerate() {
-        ln_phi(
-            &m,
-            T,
-            P,
-            &ph.composition,
-            RootChoice::Stable,
-            Need::VALUES,
-            &mut fw,
-            &mut out,
-        )
-        .unwrap();
-        for i in 0..3 {
-            lnf[k][i] = ph.composition[i].ln() + out.ln_phi[i];
-        }
-    }
-    for i in 0..3 {
-        for k in 1..3 {
-            assert!(
-                (lnf[k][i] - lnf[0][i]).abs() < 1e-9,
-                "ln f of {i} in phase {k}: {:?}",
-                lnf
-            );
-        }
-    }
+    let lnf = ln_fugacities(&m, T, P, &r);
+    assert_equal_fugacities(&lnf, 1e-9, "z_w = 0.5");
     // Certificate: no fourth phase lowers G.
     let cert = r.diagnostics.certificate.unwrap();
     assert!(cert >= -1e-10, "certificate {cert}");
     // Lewis–Randall for the nearly pure water: ln f_w = ln x_w + ln f_w(pure liquid).
+    let mut fw = FugacityWork::new(3);
     let mut pure = LnPhi::new(3);
     ln_phi(
         &m,
@@ -222,8 +235,6 @@ fn grid_through_the_three_phase_region() {
     let z = [0.3, 0.2, 0.5];
     let mut ctx = FlashContext::new(3);
     let (mut counts, mut errors) = ([0usize; 4], Vec::new());
-    let mut fw = FugacityWork::new(3);
-    let mut out = LnPhi::new(3);
     for i in 0..40 {
         for j in 0..40 {
             let t = 250.0 + 200.0 * i as f64 / 39.0;
@@ -232,28 +243,7 @@ fn grid_through_the_three_phase_region() {
                 Ok(r) => {
                     counts[r.phases.len()] += 1;
                     assert!(r.diagnostics.certificate.unwrap() >= -1e-10, "T {t} p {p}");
-                    let mut first: Option<Vec<f64>> = None;
-                    for ph in &r.phases {
-                        ln_phi(
-                            &m,
-                            t,
-                            p,
-                            &ph.composition,
-                            RootChoice::Stable,
-                            Need::VALUES,
-                            &mut fw,
-                            &mut out,
-                        )
-                        .unwrap();
-                        let lnf: Vec<f64> = (0..3).map(|c| ph.composition[c].ln() + out.ln_phi[c]).collect();
-                        if let Some(f0) = &first {
-                            for c in 0..3 {
-                                assert!((lnf[c] - f0[c]).abs() < 1e-9, "T {t} p {p} component {c}");
-                            }
-                        } else {
-                            first = Some(lnf);
-                        }
-                    }
+                    assert_equal_fugacities(&ln_fugacities(&m, t, p, r), 1e-9, &format!("T {t} p {p}"));
                 }
                 Err(e) => errors.push(format!("T {t:.1} p {p:.0}: {e}")),
             }
@@ -279,43 +269,13 @@ fn grid_through_the_three_phase_region() {
 #[test]
 fn three_phases_from_a_trace_of_water_to_a_trace_of_hydrocarbon() {
     let m = model(&["methane", "n-hexane", "water"]);
-    let mut fw = FugacityWork::new(3);
-    let mut out = LnPhi::new(3);
     for zw in [0.0012, 0.002, 0.01, 0.1, 0.5, 0.9, 0.99, 0.999, 0.9999, 0.99999] {
         let z = [0.6 * (1.0 - zw), 0.4 * (1.0 - zw), zw];
         let r = flash_pt(&m, T, P, &z, &three()).unwrap_or_else(|e| panic!("z_w = {zw}: {e}"));
         assert_eq!(r.phases.len(), 3, "z_w = {zw}");
-        for i in 0..3 {
-            let s: f64 = r.phases.iter().map(|p| p.fraction * p.composition[i]).sum();
-            assert!((s - z[i]).abs() < 1e-12, "z_w = {zw}, component {i}");
-        }
-        let mut lnf = Vec::new();
-        for ph in &r.phases {
-            ln_phi(
-                &m,
-                T,
-                P,
-                &ph.composition,
-                RootChoice::Stable,
-                Need::VALUES,
-                &mut fw,
-                &mut out,
-            )
-            .unwrap();
-            lnf.push(
-                (0..3)
-                    .map(|c| ph.composition[c].ln() + out.ln_phi[c])
-                    .collect::<Vec<_>>(),
-            );
-        }
-        for k in 1..3 {
-            for c in 0..3 {
-                assert!(
-                    (lnf[k][c] - lnf[0][c]).abs() < 1e-9,
-                    "z_w = {zw}, phase {k}, component {c}"
-                );
-            }
-        }
+        let what = format!("z_w = {zw}");
+        assert_mass_balance(&r, &z, &what);
+        assert_equal_fugacities(&ln_fugacities(&m, T, P, &r), 1e-9, &what);
         assert!(r.diagnostics.certificate.unwrap() >= -1e-10, "z_w = {zw}");
     }
 }

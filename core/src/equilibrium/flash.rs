@@ -468,13 +468,7 @@ impl FlashContext {
         let nc = self.nc;
         for attempt in 0..2 {
             let x = self.best.x.clone();
-            let sopts = StabilityOptions {
-                early_exit: true,
-                ..opts.stability
-            };
-            stability_with(model, t, p, &x, &sopts, &[], &mut self.ws, &mut self.cert)?;
-            diag.certificate_iterations += self.cert.iterations;
-            diag.certificate = Some(self.cert.min_tpd);
+            self.certificate_of(model, t, p, &x, opts, diag)?;
             if self.cert.stable || attempt == 1 {
                 if !self.cert.stable && opts.max_phases >= 3 {
                     return self.add_third_phase(model, t, p, opts, diag);
@@ -589,6 +583,27 @@ impl FlashContext {
         true
     }
 
+    /// The stability test of phase composition `x` into `self.cert` (stopping at the first
+    /// negative stationary point), recorded as the certificate in `diag`.
+    fn certificate_of<M: FluidModel + ?Sized>(
+        &mut self,
+        model: &M,
+        t: f64,
+        p: f64,
+        x: &[f64],
+        opts: &FlashOptions,
+        diag: &mut Diagnostics,
+    ) -> Result<()> {
+        let sopts = StabilityOptions {
+            early_exit: true,
+            ..opts.stability
+        };
+        stability_with(model, t, p, x, &sopts, &[], &mut self.ws, &mut self.cert)?;
+        diag.certificate_iterations += self.cert.iterations;
+        diag.certificate = Some(self.cert.min_tpd);
+        Ok(())
+    }
+
     /// The certificate of the best two-phase split found a lower tangent plane at the
     /// stationary point `cert.points[0]`: add it as a third phase to the split's two, solve
     /// the three-phase problem, and certify the answer by a stability test of its largest
@@ -635,14 +650,7 @@ impl FlashContext {
         };
         diag.ss_iterations += tp.iterations;
         let big = (0..3).max_by(|&a, &b| tp.beta[a].total_cmp(&tp.beta[b])).unwrap_or(0);
-        let sopts = StabilityOptions {
-            early_exit: true,
-            ..opts.stability
-        };
-        let probe = tp.x[big].clone();
-        stability_with(model, t, p, &probe, &sopts, &[], &mut self.ws, &mut self.cert)?;
-        diag.certificate_iterations += self.cert.iterations;
-        diag.certificate = Some(self.cert.min_tpd);
+        self.certificate_of(model, t, p, &tp.x[big], opts, diag)?;
         if !self.cert.stable {
             return Err(Error::NoSolution(format!(
                 "at T = {t} K, p = {p} Pa the least-Gibbs state has more than three phases \
@@ -677,14 +685,8 @@ impl FlashContext {
         {
             self.best.copy_from(&self.split);
         }
-        let sopts = StabilityOptions {
-            early_exit: true,
-            ..opts.stability
-        };
         let x = self.best.x.clone();
-        stability_with(model, t, p, &x, &sopts, &[], &mut self.ws, &mut self.cert)?;
-        diag.certificate_iterations += self.cert.iterations;
-        diag.certificate = Some(self.cert.min_tpd);
+        self.certificate_of(model, t, p, &x, opts, diag)?;
         if self.cert.stable {
             return Ok(());
         }

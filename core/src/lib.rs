@@ -26,6 +26,7 @@
 //! engineering practice govern the design of pressure equipment and of systems handling
 //! flammable or toxic fluids.
 
+pub mod calc;
 pub mod equilibrium;
 pub mod error;
 pub mod model;

@@ -205,6 +205,19 @@ typedef struct tl_context tl_context;
 typedef struct tl_model tl_model;
 
 /**
+ * A calculation with its options parsed and checked (`tl_plan_new`), ready to run any
+ * number of times. Immutable: may be shared by any number of threads.
+ */
+typedef struct tl_plan tl_plan;
+
+/**
+ * The result of a calculation as named fields with units (`tl_record_*` reads them). Empty
+ * when created; each `tl_run` into it replaces its content. May be read by several threads
+ * at once, but not filled while another thread reads or fills it (`TL_STATUS_BUSY`).
+ */
+typedef struct tl_record tl_record;
+
+/**
  * A result: empty when created, then holding the outcome of the last successful call that
  * filled it (a flash or a stability test). Refilling reuses its storage.
  *
@@ -220,6 +233,13 @@ typedef struct tl_result tl_result;
  * across any number of threads. A solid built from a fluid model keeps no reference to it.
  */
 typedef struct tl_solid tl_solid;
+
+/**
+ * Warm-start state for calculations run one after another (a simulator's time loop, a
+ * sweep): each call of a calculation starts from the previous solution of that calculation.
+ * One thread at a time (another thread gets `TL_STATUS_BUSY`).
+ */
+typedef struct tl_workspace tl_workspace;
 
 /**
  * Options of the stability test. Initialise with `tl_stability_options_default`.
@@ -1007,6 +1027,148 @@ const char *tl_status_name(uint32_t status);
  * changes it.
  */
 tl_status tl_last_error_message(char *buf, size_t len, size_t *needed);
+
+/**
+ * Number of calculations (`tl_calculation_name` lists them).
+ */
+size_t tl_calculation_count(void);
+
+/**
+ * The name of calculation `index` (0-based), e.g. "flash_ph". Buffer convention as
+ * `tl_model_component_name`.
+ */
+tl_status tl_calculation_name(size_t index, char *buf, size_t len, size_t *needed);
+
+/**
+ * A description of calculation `name` as JSON: its summary, its arguments with units, and
+ * its default options (every key `tl_plan_new` accepts). Buffer convention as
+ * `tl_model_component_name`.
+ */
+tl_status tl_calculation_describe(const char *name, char *buf, size_t len, size_t *needed);
+
+/**
+ * Prepares calculation `name` with options given as a JSON object (`NULL` or `"{}"` for the
+ * defaults; `tl_calculation_describe` lists the keys). An unknown name or option key, or a
+ * value of the wrong type, is `TL_STATUS_INVALID_INPUT` with a message listing what is
+ * allowed. Free with `tl_plan_free`.
+ */
+tl_status tl_plan_new(const char *name, const char *options_json, struct tl_plan **out);
+
+/**
+ * Releases a plan. NULL is accepted and ignored. Must not be called twice.
+ */
+void tl_plan_free(struct tl_plan *plan);
+
+/**
+ * A new, empty workspace. Free with `tl_workspace_free`.
+ */
+tl_status tl_workspace_new(struct tl_workspace **out);
+
+/**
+ * Releases a workspace. NULL is accepted and ignored. Must not be called twice.
+ */
+void tl_workspace_free(struct tl_workspace *workspace);
+
+/**
+ * Forgets the previous solutions held by a workspace (the next calls start cold).
+ */
+tl_status tl_workspace_reset(struct tl_workspace *workspace);
+
+/**
+ * A new, empty record. Free with `tl_record_free`.
+ */
+tl_status tl_record_new(struct tl_record **out);
+
+/**
+ * Releases a record. NULL is accepted and ignored. Must not be called twice.
+ */
+void tl_record_free(struct tl_record *record);
+
+/**
+ * Runs a plan on `model` with `nargs` scalar arguments (in the order and units of the
+ * calculation's description) and the feed amounts (`nc` values, mol), writing the result
+ * into `record`. `workspace` may be NULL (a cold start, nothing kept) or a workspace for
+ * warm starts. On failure `record` is left as it was.
+ *
+ * # Safety
+ * As the crate's shared contract.
+ */
+tl_status tl_run(const struct tl_plan *plan,
+                 struct tl_workspace *workspace,
+                 const struct tl_model *model,
+                 const double *args,
+                 size_t nargs,
+                 const double *feed,
+                 size_t nc,
+                 struct tl_record *record);
+
+/**
+ * The calculation that filled the record ("" when empty). Buffer convention as
+ * `tl_model_component_name`.
+ */
+tl_status tl_record_kind(const struct tl_record *record, char *buf, size_t len, size_t *needed);
+
+/**
+ * Number of fields of the record.
+ */
+tl_status tl_record_num_fields(const struct tl_record *record, size_t *out);
+
+/**
+ * The name of field `index` (0-based). Buffer convention as `tl_model_component_name`.
+ */
+tl_status tl_record_field_name(const struct tl_record *record,
+                               size_t index,
+                               char *buf,
+                               size_t len,
+                               size_t *needed);
+
+/**
+ * The SI unit of field `name` ("" for counts, flags and words; "1" for dimensionless
+ * numbers). Buffer convention as `tl_model_component_name`.
+ */
+tl_status tl_record_field_unit(const struct tl_record *record,
+                               const char *name,
+                               char *buf,
+                               size_t len,
+                               size_t *needed);
+
+/**
+ * The number in field `name` (a count reads as a number). A field that holds a vector or
+ * a table is `TL_STATUS_INVALID_INPUT`; one not available in this result (e.g. a
+ * certificate that was not computed) is `TL_STATUS_NO_SOLUTION`.
+ */
+tl_status tl_record_number(const struct tl_record *record, const char *name, double *out);
+
+/**
+ * The numbers in field `name`, row by row for a table, into `buf` (`len` values). `needed`
+ * receives the count required, `rows` and `cols` (each may be NULL) the shape: (n, 1) for a
+ * vector of n, (1, 1) for a single number. `buf = NULL, len = 0` queries the size;
+ * a buffer too small is `TL_STATUS_BUFFER_TOO_SMALL` (nothing written but the sizes).
+ */
+tl_status tl_record_numbers(const struct tl_record *record,
+                            const char *name,
+                            double *buf,
+                            size_t len,
+                            size_t *needed,
+                            size_t *rows,
+                            size_t *cols);
+
+/**
+ * The word in field `name` — or, for a vector of words (e.g. `phase_kinds`), its entry
+ * `index` (ignored for a single word). Buffer convention as `tl_model_component_name`.
+ */
+tl_status tl_record_text(const struct tl_record *record,
+                         const char *name,
+                         size_t index,
+                         char *buf,
+                         size_t len,
+                         size_t *needed);
+
+/**
+ * The whole record as one JSON object (`{"kind": ..., <field>: <value>, ..., "units":
+ * {...}}`; absent values are `null`). Buffer convention as `tl_model_component_name`.
+ */
+tl_status tl_record_to_json(const struct tl_record *record, char *buf, size_t len, size_t *needed);
 
 /**
  * Fills `out` with the default flash options.

@@ -34,6 +34,7 @@
 #![allow(non_camel_case_types)]
 
 mod boundary;
+pub mod calc;
 pub mod flash;
 pub mod model;
 pub mod pure;
@@ -41,6 +42,7 @@ pub mod result;
 pub mod saturation;
 
 pub use boundary::tl_status;
+pub use calc::*;
 pub use flash::*;
 pub use model::*;
 pub use pure::*;

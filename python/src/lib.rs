@@ -6,6 +6,7 @@
 //! of `tieline._errors` (module `errors`). The public Python API and its docs live in the
 //! pure-Python package; this crate is its engine. Units are SI: K, Pa, mol, m3, J.
 
+mod calc;
 mod errors;
 mod parallel;
 mod pure;
@@ -1147,6 +1148,12 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(pure::pure_gibbs_curves, m)?)?;
     m.add_function(wrap_pyfunction!(water::water_state, m)?)?;
     m.add_function(wrap_pyfunction!(water::water_saturation_point, m)?)?;
+    m.add_class::<calc::PyRecord>()?;
+    m.add_function(wrap_pyfunction!(calc::_record_from_json, m)?)?;
+    m.add_function(wrap_pyfunction!(calc::describe_calculation, m)?)?;
+    m.add_function(wrap_pyfunction!(calc::calculation_names, m)?)?;
+    m.add_function(wrap_pyfunction!(calc::calc_point, m)?)?;
+    m.add_function(wrap_pyfunction!(calc::calc_sweep, m)?)?;
     m.add_function(wrap_pyfunction!(set_threads, m)?)?;
     m.add_function(wrap_pyfunction!(get_threads, m)?)?;
     Ok(())

@@ -42,6 +42,7 @@ from ._api import (
     water_saturation,
 )
 from ._pure import PureSubstance
+from ._calc import Record, Sweep, calculate, calculations, describe
 from ._errors import (
     ConvergenceError,
     DataError,
@@ -91,6 +92,11 @@ __all__ = [
     "PhaseState",
     "Solid",
     "PureSubstance",
+    "calculate",
+    "calculations",
+    "describe",
+    "Record",
+    "Sweep",
     "flash",
     "stability",
     "saturation_pressure",

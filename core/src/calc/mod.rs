@@ -1,0 +1,334 @@
+//! One description of the calculations the bindings expose.
+//!
+//! Each entry of [`CALCULATIONS`] names a calculation, its scalar arguments with their units,
+//! its options (a serde type with defaults, given as a JSON object whose keys are checked) and
+//! how its result reads as a [`Record`] of named fields with units. The C ABI, the Python
+//! package and the command-line tool run calculations through [`Plan`] and read [`Record`]s
+//! and [`Columns`], so a new calculation is described once here and reaches every binding
+//! without hand-written wrappers.
+//!
+//! ```
+//! use tieline::calc::{Plan, Workspace};
+//! use tieline::model::{CubicEos, CubicKind, Model};
+//! use tieline::substance::DataBank;
+//!
+//! let bank = DataBank::embedded();
+//! let model = Model::from(CubicEos::new(CubicKind::PengRobinson, bank.get_many(&["methane", "propane"])?)?);
+//! let plan = Plan::new("flash_pt", Some(r#"{"tolerance": 1e-12}"#))?;
+//! let mut ws = Workspace::default();
+//! let r = plan.run(&mut ws, &model, &[250.0, 2.0e6], &[0.6, 0.4])?;
+//! assert_eq!(r.get_number("num_phases")?, 2.0);
+//! assert!(r.get_number("vapor_fraction")? > 0.0);
+//! # Ok::<(), tieline::Error>(())
+//! ```
+
+mod record;
+
+pub use record::{Column, ColumnData, Columns, Field, Record, Value};
+
+use crate::equilibrium::{FlashContext, FlashOptions, FlashResult};
+use crate::error::{Error, Result};
+use crate::model::{FluidModel, Model};
+use serde::Serialize;
+use serde::de::DeserializeOwned;
+use serde_json::Value as Json;
+
+/// A scalar argument of a calculation (besides the feed amounts).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Argument {
+    /// Its name (snake_case).
+    pub name: &'static str,
+    /// Its unit (SI).
+    pub unit: &'static str,
+    /// What it is.
+    pub doc: &'static str,
+}
+
+/// A calculation: its name, arguments, options and how to run it.
+pub struct Calculation {
+    /// Its name, e.g. `"flash_pt"`.
+    pub name: &'static str,
+    /// One line on what it computes.
+    pub summary: &'static str,
+    /// The scalar arguments, in call order; the feed amounts (mol, one per component) follow.
+    pub arguments: &'static [Argument],
+    defaults: fn() -> Json,
+    parse: fn(&Json) -> Result<Options>,
+    run: RunFn,
+}
+
+/// How a calculation runs: options, warm-start state, model, scalar arguments, feed.
+type RunFn = fn(&Options, &mut Workspace, &Model, &[f64], &[f64]) -> Result<Record>;
+
+impl std::fmt::Debug for Calculation {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("Calculation")
+            .field("name", &self.name)
+            .field("arguments", &self.arguments)
+            .finish()
+    }
+}
+
+impl Calculation {
+    /// The default options as a JSON object (every key a caller may set).
+    pub fn default_options(&self) -> Json {
+        (self.defaults)()
+    }
+}
+
+/// Parsed options of one calculation.
+#[derive(Debug, Clone, PartialEq)]
+#[non_exhaustive]
+pub enum Options {
+    /// PT-flash options.
+    Flash(FlashOptions),
+}
+
+/// Reusable solver state for running calculations one after another on one thread: warm
+/// starts carry from one call to the next of the same calculation (as in a simulator's time
+/// loop or along a sweep). Create one per thread.
+#[derive(Debug, Default)]
+pub struct Workspace {
+    flash: FlashContext,
+}
+
+impl Workspace {
+    /// Forgets every previous solution, so the next call starts cold.
+    pub fn reset(&mut self) {
+        self.flash.reset();
+    }
+}
+
+/// A calculation with its options parsed and checked, ready to run many times.
+#[derive(Debug, Clone)]
+pub struct Plan {
+    calc: &'static Calculation,
+    options: Options,
+}
+
+impl Plan {
+    /// The calculation `name` with options from a JSON object (`None` or `"{}"` for the
+    /// defaults). Unknown calculation names and option keys are [`Error::InvalidInput`]s that
+    /// list the known ones; ill-typed or out-of-range values likewise.
+    pub fn new(name: &str, options_json: Option<&str>) -> Result<Plan> {
+        let value = match options_json.map(str::trim) {
+            None | Some("") => None,
+            Some(text) => Some(
+                serde_json::from_str::<Json>(text)
+                    .map_err(|e| Error::invalid("options", format!("not a JSON object: {e}")))?,
+            ),
+        };
+        Plan::from_value(name, value.as_ref())
+    }
+
+    /// As [`Plan::new`], with the options already parsed into a JSON value.
+    pub fn from_value(name: &str, options: Option<&Json>) -> Result<Plan> {
+        let calc = find(name)?;
+        let empty = Json::Object(Default::default());
+        let given = options.unwrap_or(&empty);
+        if !given.is_object() {
+            return Err(Error::invalid(
+                "options",
+                "a JSON object of option names and values is required",
+            ));
+        }
+        record::check_option_keys(given, &calc.default_options(), "")?;
+        let options = (calc.parse)(given)?;
+        Ok(Plan { calc, options })
+    }
+
+    /// The calculation.
+    pub fn calculation(&self) -> &'static Calculation {
+        self.calc
+    }
+
+    /// The parsed options.
+    pub fn options(&self) -> &Options {
+        &self.options
+    }
+
+    /// Runs the calculation on `model` with its scalar `args` (in the order and units of
+    /// [`Calculation::arguments`]) and the feed amounts `feed` (mol), using and updating the
+    /// warm-start state in `ws`.
+    pub fn run(&self, ws: &mut Workspace, model: &Model, args: &[f64], feed: &[f64]) -> Result<Record> {
+        let want = self.calc.arguments;
+        if args.len() != want.len() {
+            let names: Vec<String> = want.iter().map(|a| format!("{} ({})", a.name, a.unit)).collect();
+            return Err(Error::invalid(
+                "arguments",
+                format!(
+                    "{} values given; {} takes {}: {}",
+                    args.len(),
+                    self.calc.name,
+                    want.len(),
+                    names.join(", ")
+                ),
+            ));
+        }
+        (self.calc.run)(&self.options, ws, model, args, feed)
+    }
+}
+
+/// The calculation called `name`, or an [`Error::InvalidInput`] listing those there are.
+pub fn find(name: &str) -> Result<&'static Calculation> {
+    CALCULATIONS.iter().find(|c| c.name == name).ok_or_else(|| {
+        let names: Vec<&str> = CALCULATIONS.iter().map(|c| c.name).collect();
+        Error::invalid(
+            "calculation",
+            format!(
+                "'{name}' is not a calculation; the calculations are: {}",
+                names.join(", ")
+            ),
+        )
+    })
+}
+
+fn defaults_of<T: Serialize + Default>() -> Json {
+    serde_json::to_value(T::default()).unwrap_or(Json::Null)
+}
+
+fn parse_as<T: DeserializeOwned>(v: &Json) -> Result<T> {
+    serde_json::from_value(v.clone()).map_err(|e| Error::invalid("options", e.to_string()))
+}
+
+const T_ARG: Argument = Argument {
+    name: "temperature",
+    unit: "K",
+    doc: "temperature",
+};
+const P_ARG: Argument = Argument {
+    name: "pressure",
+    unit: "Pa",
+    doc: "pressure",
+};
+
+/// Every calculation the bindings expose.
+pub static CALCULATIONS: &[Calculation] = &[Calculation {
+    name: "flash_pt",
+    summary: "phases of least Gibbs energy at given temperature, pressure and feed (PT flash)",
+    arguments: &[T_ARG, P_ARG],
+    defaults: defaults_of::<FlashOptions>,
+    parse: |v| Ok(Options::Flash(parse_as(v)?)),
+    run: |o, ws, m, a, feed| {
+        let Options::Flash(o) = o;
+        let r = ws.flash.flash(m, a[0], a[1], feed, o)?;
+        let mut rec = Record::new("flash_pt");
+        flash_fields(&mut rec, m, r);
+        Ok(rec)
+    },
+}];
+
+/// The fields of a flash result: conditions, phases, mixture properties, diagnostics.
+/// Mixture energies need the ideal-gas correlations; where they are out of range those
+/// fields are absent and `properties_error` says why.
+fn flash_fields(rec: &mut Record, model: &Model, r: &FlashResult) {
+    let nc = model.num_components();
+    rec.number("temperature", "K", r.temperature)
+        .number("pressure", "Pa", r.pressure)
+        .count("num_phases", r.phases.len())
+        .number("vapor_fraction", "1", r.vapor_fraction())
+        .texts(
+            "phase_kinds",
+            r.phases
+                .iter()
+                .map(|p| p.kind.map_or_else(|| "unknown".to_string(), |k| k.to_string()))
+                .collect(),
+        )
+        .numbers("phase_amounts", "mol", r.phases.iter().map(|p| p.amount).collect())
+        .numbers("phase_fractions", "1", r.phases.iter().map(|p| p.fraction).collect())
+        .table(
+            "compositions",
+            "1",
+            r.phases.iter().map(|p| p.composition.clone()).collect(),
+        )
+        .numbers(
+            "molar_volumes",
+            "m3/mol",
+            r.phases.iter().map(|p| p.molar_volume).collect(),
+        )
+        .numbers("z_factors", "1", r.phases.iter().map(|p| p.z).collect());
+    let (props, err) = match r.mixture_properties(model) {
+        Ok(m) => (Some(m), None),
+        Err(e) => (None, Some(e.to_string())),
+    };
+    rec.maybe("molar_volume", "m3/mol", props.map(|m| m.molar_volume))
+        .maybe("enthalpy", "J/mol", props.map(|m| m.enthalpy))
+        .maybe("entropy", "J/(mol K)", props.map(|m| m.entropy))
+        .maybe("internal_energy", "J/mol", props.map(|m| m.internal_energy))
+        .maybe("gibbs_energy", "J/mol", props.map(|m| m.gibbs))
+        .maybe("helmholtz_energy", "J/mol", props.map(|m| m.helmholtz))
+        .maybe("cp_frozen", "J/(mol K)", props.map(|m| m.cp_frozen))
+        .maybe("mass_density", "kg/m3", props.map(|m| m.mass_density));
+    if let Some(e) = err {
+        rec.text("properties_error", e);
+    }
+    let d = &r.diagnostics;
+    rec.number("residual", "1", d.residual)
+        .maybe("certificate", "1", d.certificate)
+        .number("reduced_gibbs", "1", d.gibbs)
+        .count("stability_iterations", d.stability_iterations)
+        .count("ss_iterations", d.ss_iterations)
+        .count("newton_iterations", d.newton_iterations)
+        .flag("warm_start", d.warm_start);
+    debug_assert!(r.phases.iter().all(|p| p.composition.len() == nc));
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::model::{CubicEos, CubicKind};
+    use crate::substance::DataBank;
+
+    fn model() -> Model {
+        let bank = DataBank::embedded();
+        Model::from(CubicEos::new(CubicKind::PengRobinson, bank.get_many(&["methane", "propane"]).unwrap()).unwrap())
+    }
+
+    #[test]
+    fn a_plan_runs_the_same_flash_as_the_solver() {
+        let m = model();
+        let plan = Plan::new("flash_pt", None).unwrap();
+        let mut ws = Workspace::default();
+        let rec = plan.run(&mut ws, &m, &[250.0, 2.0e6], &[0.6, 0.4]).unwrap();
+        let direct = crate::equilibrium::flash_pt(&m, 250.0, 2.0e6, &[0.6, 0.4], &FlashOptions::default()).unwrap();
+        assert_eq!(rec.get_number("vapor_fraction").unwrap(), direct.vapor_fraction());
+        let (x, rows, cols) = rec.get_numbers("compositions").unwrap();
+        assert_eq!((rows, cols), (2, 2));
+        assert_eq!(x[0], direct.phases[0].composition[0]);
+        let h = direct.mixture_properties(&m).unwrap().enthalpy;
+        assert_eq!(rec.get_number("enthalpy").unwrap(), h);
+    }
+
+    #[test]
+    fn bad_names_options_and_arguments_are_typed_errors() {
+        let e = Plan::new("flash_tp", None).unwrap_err();
+        assert!(e.to_string().contains("flash_pt"), "{e}");
+        let e = Plan::new("flash_pt", Some(r#"{"tolerence": 1e-8}"#)).unwrap_err();
+        assert!(e.to_string().contains("'tolerence'"), "{e}");
+        let e = Plan::new("flash_pt", Some(r#"{"tolerance": "small"}"#)).unwrap_err();
+        assert_eq!(e.kind(), crate::ErrorKind::InvalidInput);
+        let e = Plan::new("flash_pt", Some("[1, 2]")).unwrap_err();
+        assert!(e.to_string().contains("JSON object"), "{e}");
+        let e = Plan::new("flash_pt", Some("{")).unwrap_err();
+        assert_eq!(e.kind(), crate::ErrorKind::InvalidInput);
+        let plan = Plan::new("flash_pt", None).unwrap();
+        let e = plan
+            .run(&mut Workspace::default(), &model(), &[250.0], &[0.5, 0.5])
+            .unwrap_err();
+        assert!(e.to_string().contains("temperature (K), pressure (Pa)"), "{e}");
+        let plan = Plan::new("flash_pt", Some(r#"{"tolerance": -1}"#)).unwrap();
+        let e = plan
+            .run(&mut Workspace::default(), &model(), &[250.0, 1e6], &[0.5, 0.5])
+            .unwrap_err();
+        assert_eq!(e.kind(), crate::ErrorKind::InvalidInput);
+    }
+
+    #[test]
+    fn every_calculation_has_checkable_defaults() {
+        for c in CALCULATIONS {
+            let d = c.default_options();
+            assert!(d.is_object(), "{}", c.name);
+            assert!(Plan::from_value(c.name, Some(&d)).is_ok(), "{}", c.name);
+        }
+    }
+}

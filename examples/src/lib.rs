@@ -1,6 +1,8 @@
 //! Shared code of the example programs: unit parsing at the edge, model building from
 //! command-line options, and plain-text tables.
 
+pub mod calc;
+
 use tieline::model::{CubicEos, CubicKind, KijMatrix, Model, model_from_json};
 use tieline::substance::DataBank;
 use tieline::{Error, Result};

@@ -1,6 +1,7 @@
 //! `tieline`: command-line access to the equilibrium engine on the embedded component data.
 //!
-//! Subcommands: `demo`, `flash`, `saturation`, `bubble`, `dew`, `props`, `components`.
+//! Subcommands: `demo`, `flash`, `saturation`, `bubble`, `dew`, `props`, `calc` (any
+//! calculation of `tieline::calc` by name), `components`.
 //! Values accept unit suffixes at the edge (K or C; Pa, kPa, MPa, bar, atm) and are SI
 //! otherwise. `--json` prints machine-readable output.
 
@@ -14,7 +15,7 @@ use tieline::model::{FluidModel, Model, PhaseState, RootChoice};
 use tieline::substance::DataBank;
 use tieline::{Error, Result};
 use tieline_examples::{
-    Table, build_model, model_from_file, parse_kind, parse_list, parse_pressure, parse_temperature,
+    Table, build_model, calc, model_from_file, parse_kind, parse_list, parse_pressure, parse_temperature,
 };
 
 #[derive(Parser)]
@@ -98,6 +99,27 @@ enum Command {
         /// Volume root: stable, liquid or vapor.
         #[arg(long, default_value = "stable")]
         root: String,
+    },
+    /// Any calculation by name (`--list` shows them with their arguments and options), e.g.
+    /// `calc flash_ph -c water -e iapws95 -z 1 --arg pressure=1atm --arg enthalpy=-250000`.
+    Calc {
+        /// The calculation (see --list).
+        #[arg(required_unless_present = "list")]
+        name: Option<String>,
+        #[command(flatten)]
+        m: ModelArgs,
+        /// Feed amounts, mol (comma-separated).
+        #[arg(short = 'z', long, allow_hyphen_values = true)]
+        feed: Option<String>,
+        /// An argument as name=value (units: K or C; Pa, kPa, MPa, bar, atm; SI otherwise), repeatable.
+        #[arg(long = "arg", allow_hyphen_values = true)]
+        args: Vec<String>,
+        /// An option as key=value (JSON value; nested as group.key=value), repeatable.
+        #[arg(long = "option", allow_hyphen_values = true)]
+        options: Vec<String>,
+        /// List the calculations, their arguments and default options.
+        #[arg(long)]
+        list: bool,
     },
     /// List the components of the data bank.
     Components {
@@ -463,6 +485,34 @@ fn run(cli: Cli) -> Result<String> {
                 t.row(vec![k.into(), e(v), u.into()]);
             }
             Ok(format!("{} phase\n\n{}", s.kind, t.render()))
+        }
+        Command::Calc {
+            name,
+            m,
+            feed,
+            args,
+            options,
+            list,
+        } => {
+            if list {
+                return Ok(calc::catalogue());
+            }
+            let name = name.unwrap_or_default();
+            let c = tieline::calc::find(&name)?;
+            let plan = tieline::calc::Plan::from_value(&name, calc::options(&options)?.as_ref())?;
+            let a = calc::arguments(c, &args)?;
+            let model = model(&m)?;
+            let feed = match feed {
+                Some(f) => parse_list("feed", &f)?,
+                None if model.num_components() == 1 => vec![1.0],
+                None => return Err(Error::invalid("feed", "give the feed amounts with -z a,b,...")),
+            };
+            let rec = plan.run(&mut tieline::calc::Workspace::default(), &model, &a, &feed)?;
+            if m.json {
+                Ok(serde_json::to_string_pretty(&rec.to_json()).unwrap_or_default())
+            } else {
+                Ok(calc::render(&rec))
+            }
         }
         Command::Components { bank, json } => {
             let b = load_bank(&bank)?;

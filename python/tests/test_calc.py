@@ -1,0 +1,84 @@
+"""Calculations by name: records, sweeps, options and their errors, pickling."""
+
+from __future__ import annotations
+
+import json
+import pickle
+
+import numpy as np
+import pytest
+
+import tieline as tl
+
+
+@pytest.fixture(scope="module")
+def gas() -> tl.Model:
+    return tl.Model(["methane", "propane"], kind="peng_robinson")
+
+
+def test_the_catalogue_describes_arguments_and_options():
+    names = tl.calculations()
+    assert "flash_pt" in names
+    d = tl.describe("flash_pt")
+    assert [a[0] for a in d["arguments"]] == ["temperature", "pressure"]
+    assert [a[1] for a in d["arguments"]] == ["K", "Pa"]
+    assert d["options"]["tolerance"] == 1e-10
+    with pytest.raises(tl.InvalidInputError, match="flash_pt"):
+        tl.describe("flash_tp")
+
+
+def test_a_record_matches_the_typed_flash(gas):
+    r = tl.calculate("flash_pt", gas, 250.0, 2.0e6, feed=[0.6, 0.4])
+    f = tl.flash(gas, 250.0, 2.0e6, [0.6, 0.4])
+    assert isinstance(r, tl.Record) and r.kind == "flash_pt"
+    assert r.vapor_fraction == f.vapor_fraction
+    assert r.num_phases == 2 and isinstance(r.num_phases, int)
+    np.testing.assert_array_equal(r.compositions[1], f.phase("liquid").composition)
+    assert r.phase_kinds == ["vapor", "liquid"]
+    assert r.units["enthalpy"] == "J/mol" and r["pressure"] == 2.0e6
+    assert "certificate" in r and r.certificate <= 1e-9
+    assert json.loads(r.to_json())["units"]["temperature"] == "K"
+    assert set(r.to_dict()) == set(r.fields)
+    with pytest.raises(AttributeError, match="enthalpy"):
+        r.enthalpie
+    assert pickle.loads(pickle.dumps(r)) == r
+
+
+def test_a_sweep_broadcasts_and_equals_the_points(gas):
+    t = np.array([240.0, 250.0, 260.0])[:, None]
+    p = np.array([1.0e6, 2.0e6])
+    s = tl.calculate("flash_pt", gas, t, p, feed=[0.6, 0.4], block=2)
+    assert isinstance(s, tl.Sweep) and s.shape == (3, 2)
+    assert s.temperature.shape == (3, 2) and s.compositions.shape[:2] == (3, 2)
+    assert s.units["pressure"] == "Pa" and s.ok.all() and not s.failures
+    for i in range(3):
+        for j in range(2):
+            r = tl.calculate("flash_pt", gas, float(t[i, 0]), float(p[j]), feed=[0.6, 0.4])
+            assert s.vapor_fraction[i, j] == pytest.approx(r.vapor_fraction, rel=1e-9)
+            k = r.num_phases
+            np.testing.assert_allclose(s.compositions[i, j, :k], r.compositions, rtol=1e-8)
+    assert pickle.loads(pickle.dumps(s)).vapor_fraction.tolist() == s.vapor_fraction.tolist()
+
+
+def test_options_and_arguments_are_checked(gas):
+    r = tl.calculate("flash_pt", gas, 250.0, 2.0e6, feed=[0.6, 0.4], tolerance=1e-12, certificate=False)
+    assert r.certificate is None
+    with pytest.raises(tl.InvalidInputError, match="tolerence"):
+        tl.calculate("flash_pt", gas, 250.0, 2.0e6, feed=[0.6, 0.4], tolerence=1e-12)
+    with pytest.raises(tl.InvalidInputError, match="max_phases"):
+        tl.calculate("flash_pt", gas, 250.0, 2.0e6, feed=[0.6, 0.4], max_phases=7)
+    with pytest.raises(tl.InvalidInputError, match="temperature"):
+        tl.calculate("flash_pt", gas, 250.0, feed=[0.6, 0.4])
+    with pytest.raises(tl.InvalidInputError, match="feed"):
+        tl.calculate("flash_pt", gas, 250.0, 2.0e6, feed=[0.6, 0.4, 0.1])
+
+
+def test_failed_points_are_flagged_or_raised(gas):
+    t = np.array([250.0, np.nan, 260.0])
+    s = tl.calculate("flash_pt", gas, t, 2.0e6, feed=[0.6, 0.4], on_error="flag")
+    assert s.ok.tolist() == [True, False, True]
+    assert np.isnan(s.vapor_fraction[1]) and s.num_phases[1] == 0
+    (idx, err), = s.failures
+    assert idx == (1,) and isinstance(err, tl.InvalidInputError)
+    with pytest.raises(tl.InvalidInputError, match="at point 1"):
+        tl.calculate("flash_pt", gas, t, 2.0e6, feed=[0.6, 0.4])

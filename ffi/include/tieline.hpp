@@ -569,6 +569,115 @@ private:
     tl_context* c_ = nullptr;
 };
 
+/// The result of a calculation by name (tl_record): named fields with SI units.
+class Record {
+public:
+    Record() { detail::check(tl_record_new(&r_)); }
+    ~Record() { tl_record_free(r_); }
+    Record(const Record&) = delete;
+    Record& operator=(const Record&) = delete;
+    Record(Record&& o) noexcept : r_(std::exchange(o.r_, nullptr)) {}
+    Record& operator=(Record&& o) noexcept {
+        std::swap(r_, o.r_);
+        return *this;
+    }
+    /// The calculation that filled it.
+    std::string kind() const {
+        return detail::text([&](char* b, size_t l, size_t* n) { return tl_record_kind(r_, b, l, n); });
+    }
+    /// The field names, in order.
+    std::vector<std::string> fields() const {
+        size_t n = 0;
+        detail::check(tl_record_num_fields(r_, &n));
+        std::vector<std::string> out;
+        for (size_t i = 0; i < n; ++i)
+            out.push_back(detail::text([&](char* b, size_t l, size_t* k) { return tl_record_field_name(r_, i, b, l, k); }));
+        return out;
+    }
+    /// A number (throws for vectors, tables, and values absent from this result).
+    double number(const std::string& name) const {
+        double v = 0;
+        detail::check(tl_record_number(r_, name.c_str(), &v));
+        return v;
+    }
+    /// Numbers row by row, with the shape (rows, cols).
+    std::vector<double> numbers(const std::string& name, size_t* rows = nullptr, size_t* cols = nullptr) const {
+        size_t needed = 0;
+        detail::check(tl_record_numbers(r_, name.c_str(), nullptr, 0, &needed, rows, cols));
+        std::vector<double> v(needed);
+        if (needed > 0) detail::check(tl_record_numbers(r_, name.c_str(), v.data(), v.size(), &needed, rows, cols));
+        return v;
+    }
+    /// A word, or entry `index` of a vector of words.
+    std::string text(const std::string& name, size_t index = 0) const {
+        return detail::text([&](char* b, size_t l, size_t* n) { return tl_record_text(r_, name.c_str(), index, b, l, n); });
+    }
+    /// The SI unit of a field.
+    std::string unit(const std::string& name) const {
+        return detail::text([&](char* b, size_t l, size_t* n) { return tl_record_field_unit(r_, name.c_str(), b, l, n); });
+    }
+    /// The whole record as JSON.
+    std::string json() const {
+        return detail::text([&](char* b, size_t l, size_t* n) { return tl_record_to_json(r_, b, l, n); });
+    }
+    tl_record* get() const noexcept { return r_; }
+
+private:
+    tl_record* r_ = nullptr;
+};
+
+/// Warm-start state for calculations run one after another on one thread.
+class Workspace {
+public:
+    Workspace() { detail::check(tl_workspace_new(&w_)); }
+    ~Workspace() { tl_workspace_free(w_); }
+    Workspace(const Workspace&) = delete;
+    Workspace& operator=(const Workspace&) = delete;
+    Workspace(Workspace&& o) noexcept : w_(std::exchange(o.w_, nullptr)) {}
+    Workspace& operator=(Workspace&& o) noexcept {
+        std::swap(w_, o.w_);
+        return *this;
+    }
+    /// Forget previous solutions.
+    void reset() { detail::check(tl_workspace_reset(w_)); }
+    tl_workspace* get() const noexcept { return w_; }
+
+private:
+    tl_workspace* w_ = nullptr;
+};
+
+/// A calculation by name with its options (JSON object text; empty for the defaults),
+/// checked once and run many times. Immutable; may be shared between threads.
+class Plan {
+public:
+    explicit Plan(const std::string& name, const std::string& options_json = "") {
+        detail::check(tl_plan_new(name.c_str(), options_json.empty() ? nullptr : options_json.c_str(), &p_));
+    }
+    ~Plan() { tl_plan_free(p_); }
+    Plan(const Plan&) = delete;
+    Plan& operator=(const Plan&) = delete;
+    Plan(Plan&& o) noexcept : p_(std::exchange(o.p_, nullptr)) {}
+    Plan& operator=(Plan&& o) noexcept {
+        std::swap(p_, o.p_);
+        return *this;
+    }
+    /// Runs on `model` with the scalar arguments (the calculation's order and units) and the
+    /// feed (mol), warm-started from `ws` when given.
+    Record run(const Model& model, Span args, Span feed, Workspace* ws = nullptr) const {
+        Record r;
+        run_into(r, model, args, feed, ws);
+        return r;
+    }
+    /// As run(), refilling an existing record (no allocation of a new handle).
+    void run_into(Record& r, const Model& model, Span args, Span feed, Workspace* ws = nullptr) const {
+        detail::check(tl_run(p_, ws ? ws->get() : nullptr, model.get(), args.data(), args.size(), feed.data(),
+                             feed.size(), r.get()));
+    }
+
+private:
+    tl_plan* p_ = nullptr;
+};
+
 inline Result Model::flash(double t, double p, Span n, const tl_flash_options* opts) const {
     Result r;
     detail::check(tl_flash(m_, t, p, n.data(), n.size(), opts, r.get()));

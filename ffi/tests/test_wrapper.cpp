@@ -149,5 +149,26 @@ int main(int argc, char** argv) {
         CHECK(std::fabs(sub.temperature - 194.686) < 0.5, "CO2 sublimation at 101325 Pa: " + t::num(sub.temperature));
     }
 
+    // Calculations by name: a plan run twice through a workspace, read as a record.
+    {
+        Plan plan("flash_pt", "{\"tolerance\": 1e-11}");
+        Workspace ws;
+        Record r = plan.run(m, {250.0, 2.0e6}, z, &ws);
+        CHECK(r.kind() == "flash_pt" && r.number("num_phases") >= 1, "record of a plan");
+        CHECK(r.unit("pressure") == "Pa" && r.fields().front() == "temperature", "fields and units");
+        size_t rows = 0, cols = 0;
+        std::vector<double> x = r.numbers("compositions", &rows, &cols);
+        CHECK(cols == 3 && x.size() == rows * cols, "a table with its shape");
+        plan.run_into(r, m, {251.0, 2.0e6}, z, &ws);
+        CHECK(r.text("warm_start") == "true", "the second point is warm-started");
+        try {
+            Plan bad("flash_pt", "{\"tolerence\": 1}");
+            CHECK(false, "a misspelt option throws");
+        } catch (const Error& e) {
+            CHECK(e.status() == TL_STATUS_INVALID_INPUT && e.message().find("tolerance") != std::string::npos,
+                  "the message lists the options");
+        }
+    }
+
     return t::finish("test_wrapper");
 }

@@ -56,7 +56,12 @@ cmake --install "$build/main" --prefix "$prefix" >/dev/null
 cmake -S examples/cpp/vessel_blowdown -B "$build/blowdown" -DCMAKE_PREFIX_PATH="$prefix" -DCMAKE_BUILD_TYPE=Release >/dev/null
 cmake --build "$build/blowdown" -j "$jobs"
 soname=$(readelf -d "$build/blowdown/vessel_blowdown" | sed -n 's/.*Shared library: \[\(libtieline[^]]*\)\].*/\1/p')
-[ "$soname" = "libtieline.so" ] || { echo "the example records '$soname', not libtieline.so" >&2; exit 1; }
+major=$(sed -n 's/^version = "\([0-9]*\)\..*/\1/p' Cargo.toml | head -1)
+[ "$soname" = "libtieline.so.$major" ] || { echo "the example records '$soname', not libtieline.so.$major" >&2; exit 1; }
+for f in libtieline.so "libtieline.so.$major"; do
+  [ -L "$prefix/lib/$f" ] || { echo "$prefix/lib/$f is not a symbolic link" >&2; exit 1; }
+done
+readelf -d "$prefix/lib/libtieline.so" | grep -q "SONAME.*\[libtieline.so.$major\]" || { echo "installed library lacks SONAME libtieline.so.$major" >&2; exit 1; }
 LD_LIBRARY_PATH="$prefix/lib" "$build/blowdown/vessel_blowdown"
 "$build/blowdown/vessel_blowdown_static" | tail -1
 export PKG_CONFIG_PATH="$prefix/lib/pkgconfig"

@@ -206,6 +206,12 @@ fn solid_flashes() -> Value {
 fn write_reference_outputs() {
     let v = vectors();
     let mut cases = serde_json::Map::new();
+    let calc = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../tests/vectors/calculations.json");
+    let calc = std::fs::read_to_string(&calc).expect("calculations.json");
+    cases.insert(
+        "calculations".into(),
+        tieline::calc::reference_outcomes(&calc).expect("calculations.json runs"),
+    );
     let sat = SaturationOptions::default();
     for c in v["flash"].as_array().expect("flash cases") {
         let r = model(&c["model"]).and_then(|m| {

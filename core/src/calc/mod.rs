@@ -169,6 +169,63 @@ impl Plan {
     }
 }
 
+/// One calculation written out as data (e.g. a test vector shared by the Rust, C and Python
+/// suites, or a job in a file): which calculation, on which model, with which arguments,
+/// feed and options.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct Case {
+    /// The calculation's name.
+    pub calculation: String,
+    /// The model, in the description format of [`crate::model::ModelDescription`] (components
+    /// looked up in the embedded data bank) or a full model.
+    pub model: Json,
+    /// The scalar arguments, in the calculation's order and units.
+    #[serde(default)]
+    pub args: Vec<f64>,
+    /// Feed amounts, mol.
+    pub feed: Vec<f64>,
+    /// Options (a JSON object; absent for the defaults).
+    #[serde(default)]
+    pub options: Option<Json>,
+}
+
+impl Case {
+    /// Builds the model and runs the calculation cold.
+    pub fn run(&self) -> Result<Record> {
+        let model = crate::model::model_from_json(&self.model.to_string(), crate::substance::DataBank::embedded())?;
+        let plan = Plan::from_value(&self.calculation, self.options.as_ref())?;
+        plan.run(&mut Workspace::default(), &model, &self.args, &self.feed)
+    }
+
+    /// The outcome as JSON: the record's JSON ([`Record::to_json`]) or `{"error": <kind>}`.
+    pub fn outcome_json(&self) -> Json {
+        match self.run() {
+            Ok(r) => r.to_json(),
+            Err(e) => serde_json::json!({"error": format!("{:?}", e.kind())}),
+        }
+    }
+}
+
+/// Runs every case of a vectors file (`{"cases": [{"id": ..., <Case fields>}, ...]}`, as
+/// tests/vectors/calculations.json) and returns `{id: outcome}` with [`Case::outcome_json`]:
+/// the reference that the C and Python suites compare their own records with.
+pub fn reference_outcomes(vectors_json: &str) -> Result<Json> {
+    let v: Json = serde_json::from_str(vectors_json).map_err(|e| Error::Data(format!("vectors file: {e}")))?;
+    let cases = v["cases"]
+        .as_array()
+        .ok_or_else(|| Error::Data("vectors file: a \"cases\" array is required".into()))?;
+    let mut out = serde_json::Map::new();
+    for c in cases {
+        let id = c["id"]
+            .as_str()
+            .ok_or_else(|| Error::Data("vectors file: a case without an \"id\"".into()))?;
+        let case: Case =
+            serde_json::from_value(c.clone()).map_err(|e| Error::Data(format!("vectors file, case {id}: {e}")))?;
+        out.insert(id.to_string(), case.outcome_json());
+    }
+    Ok(Json::Object(out))
+}
+
 /// The calculation called `name`, or an [`Error::InvalidInput`] listing those there are.
 pub fn find(name: &str) -> Result<&'static Calculation> {
     CALCULATIONS.iter().find(|c| c.name == name).ok_or_else(|| {

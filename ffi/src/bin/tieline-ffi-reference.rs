@@ -162,6 +162,14 @@ fn solid_flash() -> Value {
            "frost_guess": t_guess, "frost_point": frost})
 }
 
+/// The calculations-by-name vectors (calculations.json, beside the cases file): each case's
+/// record as JSON, for test_calc_vectors.
+fn calculations(cases_path: &str) -> Value {
+    let path = std::path::Path::new(cases_path).with_file_name("calculations.json");
+    let text = std::fs::read_to_string(&path).unwrap_or_else(|e| panic!("reading {}: {e}", path.display()));
+    tieline::calc::reference_outcomes(&text).unwrap_or_else(|e| panic!("{e}"))
+}
+
 fn main() {
     let args: Vec<String> = std::env::args().collect();
     if args.len() != 3 {
@@ -294,6 +302,7 @@ fn main() {
         "water": cases["water"].as_array().expect("water cases").iter().map(water).collect::<Vec<_>>(),
         "solid_flash": solid_flash(),
         "batch": {"case": c["id"], "temperatures": temps, "pressure": p0, "runs": batch},
+        "calculations": calculations(&args[1]),
     });
     std::fs::write(&args[2], serde_json::to_string_pretty(&out).expect("serialising"))
         .unwrap_or_else(|e| panic!("writing {}: {e}", args[2]));

@@ -43,6 +43,7 @@ use super::flash::FlashResult;
 use crate::error::{Error, Result, check};
 use crate::model::fugacity::evaluate_at_volume;
 use crate::model::{FluidModel, FugacityWork, LnPhi, Need};
+use crate::numerics::linalg::cholesky_solve;
 use crate::substance::{P_STANDARD, R};
 use serde::{Deserialize, Serialize};
 
@@ -245,7 +246,28 @@ impl SensitivityWork {
     }
 
     /// Computes the derivatives of the converged flash `result` of `model` into `out`
-    /// (storage reused). See [`flash_sensitivities`] for the errors.
+    /// (storage reused: no allocation once `self` and `out` have seen this number of
+    /// components and phases). See [`flash_sensitivities`] for the method and the errors; on
+    /// an error the contents of `out` are unspecified.
+    ///
+    /// ```
+    /// use tieline::prelude::*;
+    /// use tieline::equilibrium::{FlashContext, FlashSensitivities, SensitivityWork};
+    ///
+    /// let bank = DataBank::embedded();
+    /// let model = CubicEos::new(CubicKind::PengRobinson, bank.get_many(&["methane", "propane"])?)?;
+    /// let mut ctx = FlashContext::new(2);
+    /// let mut work = SensitivityWork::new(2);
+    /// let mut s = FlashSensitivities::default();
+    /// for t in [250.0, 255.0, 260.0] {
+    ///     let r = ctx.flash(&model, t, 3.0e6, &[0.6, 0.4], &FlashOptions::default())?;
+    ///     work.compute(&model, r, &mut s)?;
+    ///     // Mass balance: the phase amounts change by opposite amounts (mol/K).
+    ///     let d = &s.temperature.phase_amounts;
+    ///     assert!((d.iter().sum::<f64>()).abs() < 1e-12);
+    /// }
+    /// # Ok::<(), tieline::Error>(())
+    /// ```
     pub fn compute<M: FluidModel + ?Sized>(
         &mut self,
         model: &M,
@@ -541,7 +563,7 @@ impl SensitivityWork {
                 };
                 self.rhs[r] = rhs * self.scale[r];
             }
-            cholesky_solve_in_place(&self.hess, d, &mut self.rhs[..d]);
+            cholesky_solve(&self.hess, d, &mut self.rhs[..d]);
         }
         // Amount changes: unknowns from the solve, each component's dependent phase by mass
         // balance.
@@ -626,11 +648,6 @@ fn cholesky_min_pivot(a: &mut [f64], n: usize) -> std::result::Result<f64, f64> 
         }
     }
     Ok(if n == 0 { 1.0 } else { min })
-}
-
-/// Solves L Lᵀ x = b in place with the factor of [`cholesky_min_pivot`].
-fn cholesky_solve_in_place(l: &[f64], n: usize, b: &mut [f64]) {
-    crate::numerics::linalg::cholesky_solve(l, n, b);
 }
 
 /// Derivatives of the converged flash `result` of `model` with respect to T, p and each feed

@@ -43,7 +43,6 @@ use super::flash::FlashResult;
 use crate::error::{Error, Result, check};
 use crate::model::fugacity::evaluate_at_volume;
 use crate::model::{FluidModel, FugacityWork, LnPhi, Need};
-use crate::numerics::linalg::cholesky_solve;
 use crate::substance::{P_STANDARD, R};
 use serde::{Deserialize, Serialize};
 
@@ -181,11 +180,16 @@ pub struct SensitivityWork {
     cp_ig: Vec<f64>,
     /// For each component, the phase whose amount of it follows from the mass balance.
     dep: Vec<usize>,
+    /// (component, phase) of each unknown, in order: component-major, phases ascending.
+    unk: Vec<(usize, usize)>,
+    /// Φ^k_ij = (∂ln f^k_i/∂n^k_j)_{T,p}, `phif[(k * nc + i) * nc + j]`, 1/mol.
+    phif: Vec<f64>,
     /// Scaled Hessian, then its Cholesky factor, row-major d×d.
     hess: Vec<f64>,
     /// Diagonal scaling 1/√(1/n^k_i + 1/n^{L_i}_i).
     scale: Vec<f64>,
-    /// Right-hand side, then solution, of length d.
+    /// Right-hand sides, then solutions, row-major d × (nc + 2): column 0 for T, 1 for p,
+    /// 2 + j for the feed amount n_j.
     rhs: Vec<f64>,
     /// Amount changes of every phase for the current variable, `dn[k * nc + i]`.
     dn: Vec<f64>,
@@ -236,13 +240,17 @@ impl SensitivityWork {
             (&mut self.cp_ig, nc),
             (&mut self.hess, d * d),
             (&mut self.scale, d),
-            (&mut self.rhs, d),
+            (&mut self.rhs, d * (nc + 2)),
             (&mut self.dn, np * nc),
         ] {
             v.clear();
             v.resize(len, 0.0);
         }
         self.dep.resize(nc, 0);
+        self.unk.clear();
+        self.unk.reserve(d);
+        self.phif.clear();
+        self.phif.resize(np * nc * nc, 0.0);
     }
 
     /// Computes the derivatives of the converged flash `result` of `model` into `out`
@@ -296,10 +304,24 @@ impl SensitivityWork {
 
         // For each component, the phase holding most of it follows from the mass balance, so
         // that the trace amounts (large 1/n^k_i terms) sit only on the Hessian's diagonal.
+        self.unk.clear();
         for i in 0..nc {
-            self.dep[i] = (0..np)
+            let li = (0..np)
                 .max_by(|&a, &b| self.n[a * nc + i].total_cmp(&self.n[b * nc + i]))
                 .unwrap_or(0);
+            self.dep[i] = li;
+            self.unk.extend((0..np).filter(|&k| k != li).map(|k| (i, k)));
+        }
+        // Φ^k_ij = (∂ln φ^k_i/∂n^k_j) + δ_ij/n^k_i − 1/N^k.
+        for k in 0..np {
+            let inv_n = 1.0 / self.ntot[k];
+            let block = &mut self.phif[k * nc * nc..(k + 1) * nc * nc];
+            for (b, dn) in block.iter_mut().zip(&self.phi[k].dn) {
+                *b = dn - inv_n;
+            }
+            for i in 0..nc {
+                block[i * nc + i] += 1.0 / self.n[k * nc + i];
+            }
         }
         self.check_equilibrium(t, p)?;
         self.min_pivot = 1.0;
@@ -310,10 +332,11 @@ impl SensitivityWork {
         out.shape(np, nc);
         out.total_amount = ntot;
         out.total_volume = self.frozen.iter().map(|f| f.v).sum();
-        self.solve(Var::T, t, &mut out.temperature);
-        self.solve(Var::P, t, &mut out.pressure);
+        self.solve_all();
+        self.write(Var::T, t, &mut out.temperature);
+        self.write(Var::P, t, &mut out.pressure);
         for j in 0..nc {
-            self.solve(Var::Feed(j), t, &mut out.feed[j]);
+            self.write(Var::Feed(j), t, &mut out.feed[j]);
         }
         let finite = |d: &Derivative| {
             d.volume.is_finite()
@@ -464,30 +487,24 @@ impl SensitivityWork {
         let nc = self.nc;
         let nf = self.np - 1;
         let d = nf * nc;
-        for r in 0..d {
-            let (i, k) = self.unknown(r);
+        let phif = &self.phif;
+        for (r, &(i, k)) in self.unk.iter().enumerate() {
             let li = self.dep[i];
-            for c in 0..d {
-                let (j, m) = self.unknown(c);
+            let row_k = &phif[(k * nc + i) * nc..(k * nc + i + 1) * nc];
+            let row_l = &phif[(li * nc + i) * nc..(li * nc + i + 1) * nc];
+            let hrow = &mut self.hess[r * d..(r + 1) * d];
+            for (h, &(j, m)) in hrow.iter_mut().zip(&self.unk) {
                 let lj = self.dep[j];
-                let mut h = 0.0;
                 let a = f64::from(u8::from(k == m)) - f64::from(u8::from(k == lj));
-                if a != 0.0 {
-                    h += a * self.phi_f(k, i, j);
-                }
                 let b = f64::from(u8::from(li == m)) - f64::from(u8::from(li == lj));
-                if b != 0.0 {
-                    h -= b * self.phi_f(li, i, j);
-                }
-                self.hess[r * d + c] = h;
+                *h = a * row_k[j] - b * row_l[j];
             }
         }
         // Scale by the ideal-solution part of the diagonal, 1/n^k_i + 1/n^{L_i}_i, which is
         // free of cancellation: the pivots then measure the curvature of G relative to that of
         // ideal mixing (a pure substance split between two phases gives zero, not round-off
         // scaled up to one).
-        for r in 0..d {
-            let (i, k) = self.unknown(r);
+        for (r, &(i, k)) in self.unk.iter().enumerate() {
             let ideal = 1.0 / self.n[k * nc + i] + 1.0 / self.n[self.dep[i] * nc + i];
             let h = self.hess[r * d + r];
             if !(h > 0.0) || !h.is_finite() || !ideal.is_finite() {
@@ -509,23 +526,6 @@ impl SensitivityWork {
         }
     }
 
-    /// (component, phase) of unknown `r`.
-    fn unknown(&self, r: usize) -> (usize, usize) {
-        let nf = self.np - 1;
-        let (i, a) = (r / nf, r % nf);
-        (i, if a < self.dep[i] { a } else { a + 1 })
-    }
-
-    /// Φ^k_ij = (∂ln f^k_i/∂n^k_j)_{T,p} = (∂ln φ^k_i/∂n^k_j) + δ_ij/n^k_i − 1/N^k, 1/mol.
-    fn phi_f(&self, k: usize, i: usize, j: usize) -> f64 {
-        let nc = self.nc;
-        let mut v = self.phi[k].dn[i * nc + j] - 1.0 / self.ntot[k];
-        if i == j {
-            v += 1.0 / self.n[k * nc + i];
-        }
-        v
-    }
-
     fn singular(&self, t: f64, p: f64, pivot: f64) -> Error {
         Error::NoSolution(format!(
             "the derivatives of the equilibrium state do not exist at T = {t} K, p = {p} Pa: the \
@@ -536,50 +536,60 @@ impl SensitivityWork {
         ))
     }
 
-    /// Solves for the amount changes of every phase along `var` and writes the derivative.
-    fn solve(&mut self, var: Var, t: f64, out: &mut Derivative) {
+    /// Builds the nc + 2 right-hand sides and solves them with the one factor.
+    fn solve_all(&mut self) {
         let nc = self.nc;
         let d = (self.np - 1) * nc;
-        if d > 0 {
-            for r in 0..d {
-                let (i, k) = self.unknown(r);
-                let li = self.dep[i];
-                let (pk, pl) = (&self.phi[k], &self.phi[li]);
-                let rhs = match var {
-                    Var::T => -(pk.dt[i] - pl.dt[i]),
-                    Var::P => -(pk.dp[i] - pl.dp[i]),
-                    // −∂g_(k,i)/∂n_j: the feed change enters phase L_j.
-                    Var::Feed(j) => {
-                        let lj = self.dep[j];
-                        let mut v = 0.0;
-                        if k == lj {
-                            v -= self.phi_f(k, i, j);
-                        }
-                        if li == lj {
-                            v += self.phi_f(li, i, j);
-                        }
-                        v
-                    }
-                };
-                self.rhs[r] = rhs * self.scale[r];
-            }
-            cholesky_solve(&self.hess, d, &mut self.rhs[..d]);
+        let m = nc + 2;
+        if d == 0 {
+            return;
         }
+        for (r, &(i, k)) in self.unk.iter().enumerate() {
+            let li = self.dep[i];
+            let (pk, pl) = (&self.phi[k], &self.phi[li]);
+            let sc = self.scale[r];
+            let row = &mut self.rhs[r * m..(r + 1) * m];
+            row[0] = -(pk.dt[i] - pl.dt[i]) * sc;
+            row[1] = -(pk.dp[i] - pl.dp[i]) * sc;
+            // −∂g_(k,i)/∂n_j: the feed change enters phase L_j.
+            let row_k = &self.phif[(k * nc + i) * nc..(k * nc + i + 1) * nc];
+            let row_l = &self.phif[(li * nc + i) * nc..(li * nc + i + 1) * nc];
+            for (j, b) in row[2..].iter_mut().enumerate() {
+                let lj = self.dep[j];
+                let mut v = 0.0;
+                if k == lj {
+                    v -= row_k[j];
+                }
+                if li == lj {
+                    v += row_l[j];
+                }
+                *b = v * sc;
+            }
+        }
+        cholesky_solve_many(&self.hess, d, &mut self.rhs[..d * m], m);
+    }
+
+    /// Writes the derivative along `var` from the solved amount changes.
+    fn write(&mut self, var: Var, t: f64, out: &mut Derivative) {
+        let nc = self.nc;
+        let m = nc + 2;
+        let col = match var {
+            Var::T => 0,
+            Var::P => 1,
+            Var::Feed(j) => 2 + j,
+        };
         // Amount changes: unknowns from the solve, each component's dependent phase by mass
         // balance.
-        for i in 0..nc {
-            let mut rest = match var {
+        for (i, &li) in self.dep.iter().enumerate() {
+            self.dn[li * nc + i] = match var {
                 Var::Feed(j) if j == i => 1.0,
                 _ => 0.0,
             };
-            for a in 0..self.np - 1 {
-                let r = i * (self.np - 1) + a;
-                let (_, k) = self.unknown(r);
-                let v = self.rhs[r] * self.scale[r];
-                self.dn[k * nc + i] = v;
-                rest -= v;
-            }
-            self.dn[self.dep[i] * nc + i] = rest;
+        }
+        for (r, &(i, k)) in self.unk.iter().enumerate() {
+            let v = self.rhs[r * m + col] * self.scale[r];
+            self.dn[k * nc + i] = v;
+            self.dn[self.dep[i] * nc + i] -= v;
         }
         let (mut vol, mut h, mut s) = (0.0, 0.0, 0.0);
         for k in 0..self.np {
@@ -587,9 +597,9 @@ impl SensitivityWork {
             let nk = &self.n[k * nc..(k + 1) * nc];
             let dnt: f64 = dn.iter().sum();
             out.phase_amounts[k] = dnt;
-            let comp = &mut out.compositions[k];
-            for i in 0..nc {
-                comp[i] = (dn[i] - nk[i] / self.ntot[k] * dnt) / self.ntot[k];
+            let inv = 1.0 / self.ntot[k];
+            for ((c, &dni), &nki) in out.compositions[k].iter_mut().zip(dn).zip(nk) {
+                *c = (dni - nki * inv * dnt) * inv;
             }
             let f = &self.frozen[k];
             match var {
@@ -605,11 +615,15 @@ impl SensitivityWork {
                 }
                 Var::Feed(_) => {}
             }
-            let phi = &self.phi[k];
-            for i in 0..nc {
-                vol += phi.vbar[i] * dn[i];
-                h += self.h_res[k * nc + i] * dn[i];
-                s += self.s_res[k * nc + i] * dn[i];
+            let (vbar, hr, sr) = (
+                &self.phi[k].vbar,
+                &self.h_res[k * nc..(k + 1) * nc],
+                &self.s_res[k * nc..(k + 1) * nc],
+            );
+            for (i, &dni) in dn.iter().enumerate() {
+                vol += vbar[i] * dni;
+                h += hr[i] * dni;
+                s += sr[i] * dni;
             }
         }
         // The ideal-gas parts are the same in every phase: only the feed change adds them.
@@ -620,6 +634,35 @@ impl SensitivityWork {
         out.volume = vol;
         out.enthalpy = h;
         out.entropy = s;
+    }
+}
+
+/// Solves L Lᵀ X = B in place for the `m` columns of B (row-major n × m) with the factor
+/// of [`cholesky_min_pivot`]; the inner loops run along the rows of B.
+fn cholesky_solve_many(l: &[f64], n: usize, b: &mut [f64], m: usize) {
+    for i in 0..n {
+        let (done, rest) = b.split_at_mut(i * m);
+        let bi = &mut rest[..m];
+        for k in 0..i {
+            let f = l[i * n + k];
+            for (x, y) in bi.iter_mut().zip(&done[k * m..(k + 1) * m]) {
+                *x -= f * y;
+            }
+        }
+        let inv = 1.0 / l[i * n + i];
+        bi.iter_mut().for_each(|x| *x *= inv);
+    }
+    for i in (0..n).rev() {
+        let (head, tail) = b.split_at_mut((i + 1) * m);
+        let bi = &mut head[i * m..];
+        for k in i + 1..n {
+            let f = l[k * n + i];
+            for (x, y) in bi.iter_mut().zip(&tail[(k - i - 1) * m..(k - i) * m]) {
+                *x -= f * y;
+            }
+        }
+        let inv = 1.0 / l[i * n + i];
+        bi.iter_mut().for_each(|x| *x *= inv);
     }
 }
 

@@ -4,25 +4,28 @@
 //! Fundamentals and Computational Aspects", 2nd ed., Tie-Line Publications, 2007, the chapter
 //! on the two-phase flash, from memory).
 //!
-//! Formulation for P fluid phases. The unknowns are the component amounts n^k_i (mol) of
-//! P − 1 phases; the remaining phase L (the most abundant, for conditioning) follows from the
-//! mass balance n^L = n − Σ_{k≠L} n^k. At equilibrium
+//! Formulation for P fluid phases. The unknowns are the amounts n^k_i (mol) of each component
+//! in P − 1 of the phases; its amount in the remaining phase L_i (the one holding most of it,
+//! so that trace amounts never enter through the mass balance) follows from
+//! n^{L_i}_i = n_i − Σ_{k≠L_i} n^k_i. At equilibrium
 //!
-//! g_{k,i} = ln f^k_i(T, p, n^k) − ln f^L_i(T, p, n^L) = 0,   k ≠ L,
+//! g_(k,i) = ln f^k_i(T, p, n^k) − ln f^{L_i}_i(T, p, n^{L_i}) = 0,   k ≠ L_i,
 //!
-//! and with Φ^k_ij = (∂ln f^k_i/∂n^k_j)_{T,p} = δ_ij/n^k_i − 1/N^k + (∂ln φ^k_i/∂n^k_j)_{T,p}
-//! the Jacobian of g in the unknowns is the Hessian of G/RT,
+//! which is the gradient of G/RT in the unknowns. With
+//! Φ^k_ij = (∂ln f^k_i/∂n^k_j)_{T,p} = δ_ij/n^k_i − 1/N^k + (∂ln φ^k_i/∂n^k_j)_{T,p}, its
+//! Jacobian is the Hessian of G/RT,
 //!
-//! H = blockdiag(Φ^k, k ≠ L) + (1 1ᵀ) ⊗ Φ^L,
+//! H_(k,i),(m,j) = Φ^k_ij (δ_km − [k = L_j]) − Φ^{L_i}_ij (δ_{L_i m} − [L_i = L_j]),
 //!
-//! symmetric and positive definite at a strict minimum of G. Differentiating g = 0:
+//! symmetric and positive definite at a strict minimum of G (with one dependent phase L for
+//! every component it is blockdiag(Φ^k, k ≠ L) + (1 1ᵀ) ⊗ Φ^L). Differentiating g = 0:
 //!
-//! H dn/dT = −(∂ln φ^k/∂T − ∂ln φ^L/∂T),  H dn/dp = −(∂ln φ^k/∂p − ∂ln φ^L/∂p),
-//! H dn/dn_j = Φ^L e_j (the same column in every block).
+//! H dn/dT = −(∂ln φ^k_i/∂T − ∂ln φ^{L_i}_i/∂T),  H dn/dp = −(∂ln φ^k_i/∂p − ∂ln φ^{L_i}_i/∂p),
+//! H dn/dn_j = −∂g/∂n_j = −Φ^k_ij [k = L_j] + Φ^{L_i}_ij [L_i = L_j] (the added n_j enters L_j).
 //!
 //! H is factorised once (Cholesky after a symmetric diagonal scaling by the ideal-solution
-//! curvature) and each of the nc + 2
-//! right-hand sides costs one back-substitution. Phase amounts and mole fractions follow by the
+//! curvature 1/n^k_i + 1/n^{L_i}_i) and the nc + 2 right-hand sides are solved together by
+//! one back-substitution with the factor. Phase amounts and mole fractions follow by the
 //! quotient rule; an extensive property X = Σ_k X^k(T, p, n^k) changes by its frozen part
 //! (each phase at fixed n^k) plus the transfer term Σ_k Σ_i x̄^k_i dn^k_i with the partial
 //! molar quantities of each phase:
@@ -31,7 +34,7 @@
 //! s̄_i = s_i^ig(T, p°) − R ln(x_i p/p°) − R ln φ_i − RT (∂ln φ_i/∂T)_{p,n},
 //! v̄_i = −(∂p/∂n_i)_{T,V}/(∂p/∂V)_{T,n}.
 //!
-//! For example dH/dT = Σ_k C_p^k + Σ_{k≠L} Σ_i (h̄^k_i − h̄^L_i) dn^k_i/dT: the frozen heat
+//! For example dH/dT = Σ_k C_p^k + Σ_i Σ_{k≠L_i} (h̄^k_i − h̄^{L_i}_i) dn^k_i/dT: the frozen heat
 //! capacity plus the latent heat of the phase change the temperature step causes.
 //!
 //! The derivatives do not exist where H is singular: at a critical point, for a pure

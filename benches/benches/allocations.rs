@@ -1,9 +1,9 @@
-//! Heap allocations per warm-started flash after warm-up, counted by a counting global
-//! allocator (target: zero).
+//! Heap allocations per warm-started flash, and per sensitivity evaluation with reused work,
+//! after warm-up, counted by a counting global allocator (target: zero).
 
 use std::alloc::{GlobalAlloc, Layout, System};
 use std::sync::atomic::{AtomicUsize, Ordering};
-use tieline::equilibrium::{FlashContext, FlashOptions};
+use tieline::equilibrium::{FlashContext, FlashOptions, FlashSensitivities, SensitivityWork};
 use tieline_benches::{FEED, TWO_PHASE, model};
 
 struct Counting;
@@ -54,6 +54,22 @@ fn main() {
     let after = ALLOCS.load(Ordering::Relaxed);
     println!(
         "heap allocations per warm-started flash after warm-up: {:.3} ({} allocations over {calls} flashes, {warm} warm)",
+        (after - before) as f64 / calls as f64,
+        after - before
+    );
+
+    // Sensitivities of the last result with reused storage.
+    let r = ctx.flash(&m, t, p, &FEED, &opts).unwrap().clone();
+    let mut work = SensitivityWork::new(10);
+    let mut out = FlashSensitivities::default();
+    work.compute(&m, &r, &mut out).unwrap();
+    let before = ALLOCS.load(Ordering::Relaxed);
+    for _ in 0..calls {
+        work.compute(&m, &r, &mut out).unwrap();
+    }
+    let after = ALLOCS.load(Ordering::Relaxed);
+    println!(
+        "heap allocations per sensitivity evaluation with reused work: {:.3} ({} over {calls})",
         (after - before) as f64 / calls as f64,
         after - before
     );

@@ -5,10 +5,13 @@
 //! one ln φ evaluation.
 //!
 //! Usage: `tieline-instructions OPERATION REPETITIONS`, OPERATION one of `ln-phi`,
-//! `ln-phi-derivs`, `cold`, `warm`, `single-phase`, `certificate`, `cold-certified`.
+//! `ln-phi-derivs`, `cold`, `warm`, `single-phase`, `certificate`, `cold-certified`,
+//! `sensitivities` (derivatives of the converged two-phase result, reused work).
 
 use std::hint::black_box;
-use tieline::equilibrium::{FlashContext, FlashOptions, StabilityOptions, stability};
+use tieline::equilibrium::{
+    FlashContext, FlashOptions, FlashSensitivities, SensitivityWork, StabilityOptions, stability,
+};
 use tieline::model::{FugacityWork, LnPhi, Need, RootChoice, ln_phi};
 use tieline_benches::{FEED, ONE_PHASE, TWO_PHASE, equilibrium_liquid, model, no_certificate};
 
@@ -16,7 +19,7 @@ fn main() {
     let args: Vec<String> = std::env::args().collect();
     let usage = || -> ! {
         eprintln!(
-            "usage: {} OPERATION REPETITIONS (ln-phi, ln-phi-derivs, cold, warm, single-phase, certificate, cold-certified)",
+            "usage: {} OPERATION REPETITIONS (ln-phi, ln-phi-derivs, cold, warm, single-phase, certificate, cold-certified, sensitivities)",
             args[0]
         );
         std::process::exit(2)
@@ -77,6 +80,15 @@ fn main() {
             run(&mut || {
                 ctx.reset();
                 black_box(ctx.flash(&m, t2, p2, &FEED, &opts).expect("flash").phases.len());
+            })
+        }
+        "sensitivities" => {
+            let r = ctx.flash(&m, t2, p2, &FEED, &nocert).expect("flash").clone();
+            let mut work = SensitivityWork::new(10);
+            let mut s = FlashSensitivities::default();
+            run(&mut || {
+                work.compute(&m, black_box(&r), &mut s).expect("sensitivities");
+                black_box(s.temperature.enthalpy);
             })
         }
         _ => usage(),

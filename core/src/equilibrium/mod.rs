@@ -12,6 +12,7 @@ pub(crate) mod multiphase;
 pub mod pure;
 pub mod rachford_rice;
 pub mod saturation;
+pub mod sensitivity;
 pub mod solid_flash;
 pub mod stability;
 
@@ -22,6 +23,7 @@ pub use saturation::{
     BubbleDew, PointKind, SaturationOptions, SaturationPoint, bubble_pressure, bubble_temperature, dew_pressure,
     dew_temperature, saturation_pressure, saturation_temperature,
 };
+pub use sensitivity::{Derivative, FlashSensitivities, SensitivityWork, flash_sensitivities};
 pub use solid_flash::{
     SolidFlashOptions, SolidFlashResult, SolidMargin, SolidPhaseResult, SolidPhaseSpec, flash_pt_with_solids,
     frost_point_temperature,

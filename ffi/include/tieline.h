@@ -1348,6 +1348,21 @@ tl_status tl_model_molar_mass(const struct tl_model *model, size_t index, double
 tl_status tl_model_to_json(const struct tl_model *model, char *buf, size_t len, size_t *needed);
 
 /**
+ * A PT flash and the derivatives of its phase amounts, compositions and the system's V, H, S
+ * with respect to T (K), p (Pa) and each feed amount (mol), by the implicit function theorem
+ * (fields `d_*_dt`, `d_*_dp`, `d_*_dn`, `cp_equilibrium` ...; see `tl_calculation_describe`).
+ * A critical state, or a pure substance split between two phases, is `TL_STATUS_NO_SOLUTION`.
+ */
+tl_status tl_flash_sensitivities(const struct tl_model *model,
+                                 double temperature,
+                                 double pressure,
+                                 const double *feed,
+                                 size_t nc,
+                                 const char *options_json,
+                                 struct tl_workspace *workspace,
+                                 struct tl_record *record);
+
+/**
  * Ice Ih by the IAPWS-06 Gibbs function (IAPWS R10-06(2009)), species "water"; evaluated
  * for 0 < T ≤ 273.16 K and p ≤ 210 MPa. Its reference state is consistent
  * with the IAPWS-95 water model (`{"model": "iapws95"}`). On success `*out` receives a new

@@ -228,11 +228,11 @@ pub unsafe extern "C" fn tl_run(
     })
 }
 
-/// The body of [`tl_run`], shared with the named conveniences.
+/// The body of [`tl_run`]: checks the arguments.
 ///
 /// # Safety
 /// As [`tl_run`].
-pub(crate) unsafe fn run(
+unsafe fn run(
     plan: *const tl_plan,
     workspace: *mut tl_workspace,
     model: *const tl_model,
@@ -243,19 +243,37 @@ pub(crate) unsafe fn run(
     record: *mut tl_record,
 ) -> FfiResult {
     // SAFETY: caller contract.
-    let (plan, m, feed, rec) = unsafe {
-        (
-            try_ref(plan)?,
-            model_ref(model)?,
-            slice(feed, nc, "feed")?,
-            try_ref(record.cast_const())?,
-        )
-    };
+    let plan = unsafe { try_ref(plan)? };
     let args: &[f64] = if nargs == 0 {
         &[]
     } else {
         // SAFETY: caller contract.
         unsafe { slice(args, nargs, "args")? }
+    };
+    // SAFETY: caller contract.
+    unsafe { run_plan(plan, workspace, model, args, feed, nc, record) }
+}
+
+/// Runs `plan` and stores its record: shared by [`tl_run`] and the named conveniences.
+///
+/// # Safety
+/// As [`tl_run`] for the pointers.
+pub(crate) unsafe fn run_plan(
+    plan: &Plan,
+    workspace: *mut tl_workspace,
+    model: *const tl_model,
+    args: &[f64],
+    feed: *const f64,
+    nc: usize,
+    record: *mut tl_record,
+) -> FfiResult {
+    // SAFETY: caller contract.
+    let (m, feed, rec) = unsafe {
+        (
+            model_ref(model)?,
+            slice(feed, nc, "feed")?,
+            try_ref(record.cast_const())?,
+        )
     };
     let r = if workspace.is_null() {
         plan.run(&mut Workspace::default(), m, args, feed)?

@@ -148,6 +148,20 @@ int main(void) {
   CHECK(beta_rec > 0, "the record survived the failures");
   OK(tl_run(plan, NULL, model, args, 2, feed, 2, rec));
 
+  /* A named calculation: the flash's derivatives. */
+  OK(tl_flash_sensitivities(model, 250.0, 2.0e6, feed, 2, NULL, ws, rec));
+  double cp_eq = 0, cp_frozen = 0, dn[2];
+  OK(tl_record_number(rec, "cp_equilibrium", &cp_eq));
+  OK(tl_record_number(rec, "cp_frozen", &cp_frozen));
+  CHECK(cp_eq > cp_frozen, "the equilibrium cp includes the latent heat");
+  OK(tl_record_numbers(rec, "d_phase_amounts_dt", dn, 2, &needed, NULL, NULL));
+  CHECK(fabs(dn[0] + dn[1]) < 1e-12, "phase amounts change by opposite amounts");
+  CHECK(tl_flash_sensitivities(model, 250.0, 2.0e6, feed, 2, "{\"tolerance\": 0}", ws, rec) == TL_STATUS_INVALID_INPUT,
+        "options are checked");
+  CHECK(tl_flash_sensitivities(model, NAN, 2.0e6, feed, 2, NULL, NULL, rec) == TL_STATUS_INVALID_INPUT, "NaN T");
+  CHECK(tl_flash_sensitivities(model, 250.0, 2.0e6, feed, 2, NULL, NULL, NULL) == TL_STATUS_NULL_POINTER,
+        "NULL record");
+
   tl_result_free(res);
   tl_record_free(rec);
   tl_workspace_free(ws);

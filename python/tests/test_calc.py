@@ -113,3 +113,14 @@ def test_shared_vectors_match_the_rust_engine_bit_for_bit(rust_reference):
             continue
         assert "error" not in want, f"{c['id']}: the engine refuses this case"
         assert json.loads(r.to_json()) == want, c["id"]
+
+
+def test_flash_sensitivities_by_name(gas):
+    r = tl.flash_sensitivities(gas, 250.0, 2.0e6, [0.6, 0.4])
+    assert r.cp_equilibrium > r.cp_frozen
+    assert abs(r.d_phase_amounts_dt.sum()) < 1e-12
+    assert r.d_phase_amounts_dn.shape == (2, 2) and r.units["d_enthalpy_dt"] == "J/K"
+    s = tl.flash_sensitivities(gas, [245.0, 250.0], 2.0e6, [0.6, 0.4])
+    assert s.cp_equilibrium[1] == pytest.approx(r.cp_equilibrium, rel=1e-9)
+    with pytest.raises(tl.InvalidInputError):
+        tl.flash_sensitivities(gas, 250.0, 2.0e6, [0.6, 0.4], tolerance=0.0)

@@ -26,7 +26,7 @@ mod record;
 
 pub use record::{Column, ColumnData, Columns, Field, Record, Value};
 
-use crate::equilibrium::{FlashContext, FlashOptions, FlashResult};
+use crate::equilibrium::{FlashContext, FlashOptions, FlashResult, FlashSensitivities, SensitivityWork};
 use crate::error::{Error, Result};
 use crate::model::{FluidModel, Model};
 use serde::Serialize;
@@ -90,6 +90,8 @@ pub enum Options {
 #[derive(Debug, Default)]
 pub struct Workspace {
     flash: FlashContext,
+    sensitivity: SensitivityWork,
+    derivatives: FlashSensitivities,
 }
 
 impl Workspace {
@@ -260,20 +262,88 @@ const P_ARG: Argument = Argument {
 };
 
 /// Every calculation the bindings expose.
-pub static CALCULATIONS: &[Calculation] = &[Calculation {
-    name: "flash_pt",
-    summary: "phases of least Gibbs energy at given temperature, pressure and feed (PT flash)",
-    arguments: &[T_ARG, P_ARG],
-    defaults: defaults_of::<FlashOptions>,
-    parse: |v| Ok(Options::Flash(parse_as(v)?)),
-    run: |o, ws, m, a, feed| {
-        let Options::Flash(o) = o;
-        let r = ws.flash.flash(m, a[0], a[1], feed, o)?;
-        let mut rec = Record::new("flash_pt");
-        flash_fields(&mut rec, m, r);
-        Ok(rec)
+pub static CALCULATIONS: &[Calculation] = &[
+    Calculation {
+        name: "flash_pt",
+        summary: "phases of least Gibbs energy at given temperature, pressure and feed (PT flash)",
+        arguments: &[T_ARG, P_ARG],
+        defaults: defaults_of::<FlashOptions>,
+        parse: |v| Ok(Options::Flash(parse_as(v)?)),
+        run: |o, ws, m, a, feed| {
+            let o = flash_options(o)?;
+            let r = ws.flash.flash(m, a[0], a[1], feed, o)?;
+            let mut rec = Record::new("flash_pt");
+            flash_fields(&mut rec, m, r);
+            Ok(rec)
+        },
     },
-}];
+    Calculation {
+        name: "flash_sensitivities",
+        summary: "a PT flash and the derivatives of its phase amounts, compositions and mixture V, H, S \
+                  with respect to T, p and the feed amounts (implicit function theorem)",
+        arguments: &[T_ARG, P_ARG],
+        defaults: defaults_of::<FlashOptions>,
+        parse: |v| Ok(Options::Flash(parse_as(v)?)),
+        run: |o, ws, m, a, feed| {
+            let o = flash_options(o)?;
+            let r = ws.flash.flash(m, a[0], a[1], feed, o)?;
+            ws.sensitivity.compute(m, r, &mut ws.derivatives)?;
+            let mut rec = Record::new("flash_sensitivities");
+            flash_fields(&mut rec, m, r);
+            sensitivity_fields(&mut rec, &ws.derivatives);
+            Ok(rec)
+        },
+    },
+];
+
+fn flash_options(o: &Options) -> Result<&FlashOptions> {
+    match o {
+        Options::Flash(f) => Ok(f),
+        #[allow(unreachable_patterns)]
+        _ => Err(Error::invalid("options", "PT-flash options are required")),
+    }
+}
+
+/// The derivatives of a flash result (see [`FlashSensitivities`]): per T (…_dt), per p
+/// (…_dp) and per feed amount (…_dn, one row per component j).
+fn sensitivity_fields(rec: &mut Record, s: &FlashSensitivities) {
+    let (t, p) = (&s.temperature, &s.pressure);
+    rec.numbers("d_phase_amounts_dt", "mol/K", t.phase_amounts.clone())
+        .table("d_compositions_dt", "1/K", t.compositions.clone())
+        .number("d_volume_dt", "m3/K", t.volume)
+        .number("d_enthalpy_dt", "J/K", t.enthalpy)
+        .number("d_entropy_dt", "J/K2", t.entropy)
+        .numbers("d_phase_amounts_dp", "mol/Pa", p.phase_amounts.clone())
+        .table("d_compositions_dp", "1/Pa", p.compositions.clone())
+        .number("d_volume_dp", "m3/Pa", p.volume)
+        .number("d_enthalpy_dp", "J/Pa", p.enthalpy)
+        .number("d_entropy_dp", "J/(K Pa)", p.entropy)
+        .table(
+            "d_phase_amounts_dn",
+            "1",
+            s.feed.iter().map(|d| d.phase_amounts.clone()).collect(),
+        )
+        .table(
+            "d_compositions_dn",
+            "1/mol",
+            s.feed.iter().map(|d| d.compositions.concat()).collect(),
+        )
+        .numbers("d_volume_dn", "m3/mol", s.feed.iter().map(|d| d.volume).collect())
+        .numbers("d_enthalpy_dn", "J/mol", s.feed.iter().map(|d| d.enthalpy).collect())
+        .numbers("d_entropy_dn", "J/(mol K)", s.feed.iter().map(|d| d.entropy).collect())
+        .number("cp_equilibrium", "J/(mol K)", s.equilibrium_heat_capacity())
+        .number(
+            "isothermal_compressibility_equilibrium",
+            "1/Pa",
+            s.equilibrium_isothermal_compressibility(),
+        )
+        .number(
+            "thermal_expansion_equilibrium",
+            "1/K",
+            s.equilibrium_thermal_expansion(),
+        )
+        .number("joule_thomson_equilibrium", "K/Pa", s.equilibrium_joule_thomson());
+}
 
 /// The fields of a flash result: conditions, phases, mixture properties, diagnostics.
 /// Mixture energies need the ideal-gas correlations; where they are out of range those

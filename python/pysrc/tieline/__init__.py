@@ -43,6 +43,7 @@ from ._api import (
 )
 from ._pure import PureSubstance
 from ._calc import Record, Sweep, calculate, calculations, describe
+from ._named import flash_sensitivities
 from ._errors import (
     ConvergenceError,
     DataError,
@@ -93,6 +94,7 @@ __all__ = [
     "Solid",
     "PureSubstance",
     "calculate",
+    "flash_sensitivities",
     "calculations",
     "describe",
     "Record",

@@ -1,0 +1,67 @@
+//! Named entry points for the calculations of `tieline::calc`, one line each over `tl_run`:
+//! the same records (`tl_record_*`), options as a JSON object (`NULL` for the defaults), and an
+//! optional workspace for warm starts. For many calls with the same options, a plan
+//! (`tl_plan_new` + `tl_run`) checks the options once.
+
+use crate::boundary::*;
+use crate::calc::{tl_record, tl_workspace};
+use crate::model::tl_model;
+use std::ffi::c_char;
+use tieline::calc::Plan;
+
+/// Runs calculation `name` with options from a nullable JSON string.
+///
+/// # Safety
+/// As the crate's shared contract.
+unsafe fn named(
+    name: &str,
+    options_json: *const c_char,
+    workspace: *mut tl_workspace,
+    model: *const tl_model,
+    args: &[f64],
+    feed: *const f64,
+    nc: usize,
+    record: *mut tl_record,
+) -> FfiResult {
+    let opts = if options_json.is_null() {
+        None
+    } else {
+        // SAFETY: caller contract.
+        Some(unsafe { c_str(options_json, "options_json")? })
+    };
+    let plan = Plan::new(name, opts)?;
+    // SAFETY: caller contract.
+    unsafe { crate::calc::run_plan(&plan, workspace, model, args, feed, nc, record) }
+}
+
+/// A PT flash and the derivatives of its phase amounts, compositions and the system's V, H, S
+/// with respect to T (K), p (Pa) and each feed amount (mol), by the implicit function theorem
+/// (fields `d_*_dt`, `d_*_dp`, `d_*_dn`, `cp_equilibrium` ...; see `tl_calculation_describe`).
+/// A critical state, or a pure substance split between two phases, is `TL_STATUS_NO_SOLUTION`.
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_flash_sensitivities(
+    model: *const tl_model,
+    temperature: f64,
+    pressure: f64,
+    feed: *const f64,
+    nc: usize,
+    options_json: *const c_char,
+    workspace: *mut tl_workspace,
+    record: *mut tl_record,
+) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        unsafe {
+            named(
+                "flash_sensitivities",
+                options_json,
+                workspace,
+                model,
+                &[temperature, pressure],
+                feed,
+                nc,
+                record,
+            )
+        }
+    })
+}

@@ -935,8 +935,8 @@ impl<'a, M: FluidModel + ?Sized> Tracer<'a, M> {
     /// Locates the cricondenbar and cricondentherm on a traced line and inserts them.
     fn extrema(&mut self, nodes: &mut Vec<Node>, crossings: &[Crossing]) -> Result<(Option<Node>, Option<Node>)> {
         let nc = self.nc;
-        let mut found: Vec<(usize, Node, usize)> = Vec::new(); // (insert position, node, variable)
-        let mut best: [Option<(usize, Node)>; 2] = [None, None];
+        // (insert position, fraction of the way from the point before, node)
+        let mut best: [Option<(usize, f64, Node)>; 2] = [None, None];
         for (slot, var) in [(0usize, nc + 1), (1usize, nc)] {
             for i in 0..nodes.len().saturating_sub(1) {
                 let (a, b) = (&nodes[i], &nodes[i + 1]);
@@ -962,36 +962,28 @@ impl<'a, M: FluidModel + ?Sized> Tracer<'a, M> {
                     self.extremum(a.clone(), b.clone(), var, u)?
                 };
                 let better = match &best[slot] {
-                    Some((_, m)) => n.x[var] > m.x[var],
+                    Some((_, _, m)) => n.x[var] > m.x[var],
                     None => true,
                 };
                 if better {
-                    best[slot] = Some((i + 1, n));
+                    let j = (0..nc + 2)
+                        .max_by(|&p, &q| (b.x[p] - a.x[p]).abs().total_cmp(&(b.x[q] - a.x[q]).abs()))
+                        .unwrap();
+                    let frac = (n.x[j] - a.x[j]) / (b.x[j] - a.x[j]);
+                    best[slot] = Some((i + 1, frac, n));
                 }
             }
         }
-        for (slot, b) in best.iter().enumerate() {
-            if let Some((pos, n)) = b {
-                found.push((*pos, n.clone(), slot));
-            }
+        // Insert from the back so earlier positions stay valid; two extrema between the same
+        // two points go in the order of their position along the segment.
+        let mut found: Vec<&(usize, f64, Node)> = best.iter().flatten().collect();
+        found.sort_by(|a, b| b.0.cmp(&a.0).then(b.1.total_cmp(&a.1)));
+        let inserts: Vec<(usize, Node)> = found.into_iter().map(|(p, _, n)| (*p, n.clone())).collect();
+        for (pos, n) in inserts {
+            nodes.insert(pos, n);
         }
-        // Insert from the back so earlier positions stay valid.
-        found.sort_by(|a, b| b.0.cmp(&a.0).then(b.1.x[nc].total_cmp(&a.1.x[nc])));
-        for (pos, n, _) in &found {
-            // Keep the trace order if both extrema fall between the same two points.
-            let mut at = *pos;
-            let var_u = |m: &Node, o: &Node| (m.x[nc] - o.x[nc], m.x[nc + 1] - o.x[nc + 1]);
-            if at < nodes.len() && at > 0 {
-                let (dt_a, dp_a) = var_u(n, &nodes[at - 1]);
-                let (dt_b, dp_b) = var_u(&nodes[at], &nodes[at - 1]);
-                if dt_a * dt_b + dp_a * dp_b > dt_b * dt_b + dp_b * dp_b {
-                    at += 1;
-                }
-            }
-            nodes.insert(at.min(nodes.len()), n.clone());
-        }
-        let bar = best[0].take().map(|(_, n)| n);
-        let therm = best[1].take().map(|(_, n)| n);
+        let bar = best[0].take().map(|(_, _, n)| n);
+        let therm = best[1].take().map(|(_, _, n)| n);
         Ok((bar, therm))
     }
 

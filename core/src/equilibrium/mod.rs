@@ -1,5 +1,5 @@
 //! Equilibrium solvers: phase stability, the two-phase PT flash, saturation points of pure
-//! components, bubble and dew points of mixtures.
+//! components, bubble and dew points of mixtures, phase envelopes and critical points.
 //!
 //! Every solver works for any [`FluidModel`](crate::model::FluidModel) and returns a typed
 //! error rather than a doubtful answer: non-convergence comes back as
@@ -7,6 +7,8 @@
 //! reached.
 
 pub mod batch;
+pub mod critical;
+pub mod envelope;
 pub mod flash;
 pub(crate) mod multiphase;
 pub mod pure;
@@ -17,6 +19,8 @@ pub mod solid_flash;
 pub mod stability;
 
 pub use batch::flash_batch;
+pub use critical::{CriticalOptions, CriticalPoint, critical_point};
+pub use envelope::{EnvelopeOptions, EnvelopePoint, PhaseEnvelope, phase_envelope};
 pub use flash::{Diagnostics, FlashContext, FlashOptions, FlashResult, Phase, TieLine, flash_pt};
 pub use pure::{Coexistence, Crossing, GibbsCurves, PhasePoint, PurePhase, PurePhases, StablePhase, TriplePoint};
 pub use saturation::{

@@ -1363,6 +1363,30 @@ tl_status tl_flash_sensitivities(const struct tl_model *model,
                                  struct tl_record *record);
 
 /**
+ * The phase envelope of the feed (`nc` amounts, mol): bubble branch, critical point and dew
+ * branch by continuation (Michelsen 1980); fields `temperature`, `pressure`,
+ * `vapor_fraction` (vectors in trace order), `critical_temperature`, `critical_pressure`,
+ * `cricondenbar_*`, `cricondentherm_*`, `quality_line_*`. Options (JSON): `start_pressure`,
+ * `quality_lines`, `max_points`, `max_step`, `tolerance`. A pure feed is
+ * `TL_STATUS_NO_SOLUTION` (use the saturation functions).
+ */
+tl_status tl_phase_envelope(const struct tl_model *model,
+                            const double *feed,
+                            size_t nc,
+                            const char *options_json,
+                            struct tl_record *record);
+
+/**
+ * The critical point of a mixture of the feed's composition (Heidemann & Khalil 1980):
+ * fields `temperature` (K), `pressure` (Pa), `molar_volume` (m3/mol), `iterations`.
+ */
+tl_status tl_critical_point(const struct tl_model *model,
+                            const double *feed,
+                            size_t nc,
+                            const char *options_json,
+                            struct tl_record *record);
+
+/**
  * Ice Ih by the IAPWS-06 Gibbs function (IAPWS R10-06(2009)), species "water"; evaluated
  * for 0 < T ≤ 273.16 K and p ≤ 210 MPa. Its reference state is consistent
  * with the IAPWS-95 water model (`{"model": "iapws95"}`). On success `*out` receives a new

@@ -65,3 +65,61 @@ pub unsafe extern "C" fn tl_flash_sensitivities(
         }
     })
 }
+
+/// The phase envelope of the feed (`nc` amounts, mol): bubble branch, critical point and dew
+/// branch by continuation (Michelsen 1980); fields `temperature`, `pressure`,
+/// `vapor_fraction` (vectors in trace order), `critical_temperature`, `critical_pressure`,
+/// `cricondenbar_*`, `cricondentherm_*`, `quality_line_*`. Options (JSON): `start_pressure`,
+/// `quality_lines`, `max_points`, `max_step`, `tolerance`. A pure feed is
+/// `TL_STATUS_NO_SOLUTION` (use the saturation functions).
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_phase_envelope(
+    model: *const tl_model,
+    feed: *const f64,
+    nc: usize,
+    options_json: *const c_char,
+    record: *mut tl_record,
+) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        unsafe {
+            named(
+                "phase_envelope",
+                options_json,
+                std::ptr::null_mut(),
+                model,
+                &[],
+                feed,
+                nc,
+                record,
+            )
+        }
+    })
+}
+
+/// The critical point of a mixture of the feed's composition (Heidemann & Khalil 1980):
+/// fields `temperature` (K), `pressure` (Pa), `molar_volume` (m3/mol), `iterations`.
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_critical_point(
+    model: *const tl_model,
+    feed: *const f64,
+    nc: usize,
+    options_json: *const c_char,
+    record: *mut tl_record,
+) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        unsafe {
+            named(
+                "critical_point",
+                options_json,
+                std::ptr::null_mut(),
+                model,
+                &[],
+                feed,
+                nc,
+                record,
+            )
+        }
+    })
+}

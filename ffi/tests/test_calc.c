@@ -162,6 +162,29 @@ int main(void) {
   CHECK(tl_flash_sensitivities(model, 250.0, 2.0e6, feed, 2, NULL, NULL, NULL) == TL_STATUS_NULL_POINTER,
         "NULL record");
 
+  /* The envelope and the critical point of the same feed: the trace passes through it. */
+  OK(tl_critical_point(model, feed, 2, NULL, rec));
+  double tc = 0, pc = 0;
+  OK(tl_record_number(rec, "temperature", &tc));
+  OK(tl_record_number(rec, "pressure", &pc));
+  OK(tl_phase_envelope(model, feed, 2, "{\"quality_lines\": [0.5]}", rec));
+  size_t npts = 0;
+  OK(tl_record_numbers(rec, "temperature", NULL, 0, &npts, NULL, NULL));
+  CHECK(npts > 20, "an envelope of many points");
+  double tc_env[4];
+  size_t ncrit = 0;
+  OK(tl_record_numbers(rec, "critical_temperature", tc_env, 4, &ncrit, NULL, NULL));
+  CHECK(ncrit == 1 && fabs(tc_env[0] - tc) < 1e-6 * tc, "the envelope passes through the critical point");
+  double tct = 0;
+  OK(tl_record_number(rec, "cricondentherm_temperature", &tct));
+  CHECK(tct >= tc, "the cricondentherm lies at or above the critical temperature here");
+  const double pure[2] = {1.0, 0.0};
+  CHECK(tl_phase_envelope(model, pure, 2, NULL, rec) == TL_STATUS_NO_SOLUTION && last_error_contains("saturation"),
+        "a pure feed has no envelope");
+  CHECK(tl_phase_envelope(model, feed, 2, "{\"max_points\": 1e12}", rec) == TL_STATUS_INVALID_INPUT,
+        "an absurd point limit is refused");
+  (void)pc;
+
   tl_result_free(res);
   tl_record_free(rec);
   tl_workspace_free(ws);

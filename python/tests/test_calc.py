@@ -124,3 +124,20 @@ def test_flash_sensitivities_by_name(gas):
     assert s.cp_equilibrium[1] == pytest.approx(r.cp_equilibrium, rel=1e-9)
     with pytest.raises(tl.InvalidInputError):
         tl.flash_sensitivities(gas, 250.0, 2.0e6, [0.6, 0.4], tolerance=0.0)
+
+
+def test_envelope_and_critical_point_by_name(gas):
+    c = tl.critical_point(gas, [0.6, 0.4])
+    env = tl.phase_envelope(gas, [0.6, 0.4], quality_lines=[0.5])
+    assert env.critical_temperature[0] == pytest.approx(c.temperature, rel=1e-6)
+    assert env.cricondenbar_pressure >= env.pressure.max() * (1 - 1e-12)
+    assert set(np.unique(env.quality_line_fraction)) == {0.5}
+    assert env.incipient.shape == (len(env.temperature), 2)
+    rows = tl.phase_envelope(gas, [[0.6, 0.4], [0.7, 0.3]])
+    assert rows.shape == (2,) and rows.temperature.shape[0] == 2
+    n0 = int(np.isfinite(rows.temperature[0]).sum())
+    np.testing.assert_allclose(rows.temperature[0, :n0], env.temperature, rtol=1e-12)
+    with pytest.raises(tl.NoSolutionError, match="saturation"):
+        tl.phase_envelope(gas, [1.0, 0.0])
+    with pytest.raises(tl.InvalidInputError, match="quality"):
+        tl.phase_envelope(gas, [0.6, 0.4], quality_lines=[1.5])

@@ -26,7 +26,10 @@ mod record;
 
 pub use record::{Column, ColumnData, Columns, Field, Record, Value};
 
-use crate::equilibrium::{FlashContext, FlashOptions, FlashResult, FlashSensitivities, SensitivityWork};
+use crate::equilibrium::{
+    CriticalOptions, EnvelopeOptions, EnvelopePoint, FlashContext, FlashOptions, FlashResult, FlashSensitivities,
+    PhaseEnvelope, SensitivityWork, critical_point, phase_envelope,
+};
 use crate::error::{Error, Result};
 use crate::model::{FluidModel, Model};
 use serde::Serialize;
@@ -82,6 +85,10 @@ impl Calculation {
 pub enum Options {
     /// PT-flash options.
     Flash(FlashOptions),
+    /// Phase-envelope options.
+    Envelope(EnvelopeOptions),
+    /// Critical-point options.
+    Critical(CriticalOptions),
 }
 
 /// Reusable solver state for running calculations one after another on one thread: warm
@@ -294,14 +301,107 @@ pub static CALCULATIONS: &[Calculation] = &[
             Ok(rec)
         },
     },
+    Calculation {
+        name: "phase_envelope",
+        summary: "the bubble and dew curves of a mixture traced through its critical point, with the \
+                  cricondenbar, the cricondentherm and optional quality lines (Michelsen 1980)",
+        arguments: &[],
+        defaults: defaults_of::<EnvelopeOptions>,
+        parse: |v| Ok(Options::Envelope(parse_as(v)?)),
+        run: |o, _ws, m, _a, feed| {
+            let Options::Envelope(o) = o else {
+                return Err(wrong_options("phase-envelope"));
+            };
+            let env = phase_envelope(m, feed, o)?;
+            let mut rec = Record::new("phase_envelope");
+            envelope_fields(&mut rec, &env);
+            Ok(rec)
+        },
+    },
+    Calculation {
+        name: "critical_point",
+        summary: "the critical point of a mixture of given composition (Heidemann & Khalil 1980 criteria)",
+        arguments: &[],
+        defaults: defaults_of::<CriticalOptions>,
+        parse: |v| Ok(Options::Critical(parse_as(v)?)),
+        run: |o, _ws, m, _a, feed| {
+            let Options::Critical(o) = o else {
+                return Err(wrong_options("critical-point"));
+            };
+            let c = critical_point(m, feed, o)?;
+            let mut rec = Record::new("critical_point");
+            rec.number("temperature", "K", c.temperature)
+                .number("pressure", "Pa", c.pressure)
+                .number("molar_volume", "m3/mol", c.molar_volume)
+                .count("iterations", c.iterations);
+            Ok(rec)
+        },
+    },
 ];
+
+fn wrong_options(what: &str) -> Error {
+    Error::invalid("options", format!("{what} options are required"))
+}
 
 fn flash_options(o: &Options) -> Result<&FlashOptions> {
     match o {
         Options::Flash(f) => Ok(f),
-        #[allow(unreachable_patterns)]
-        _ => Err(Error::invalid("options", "PT-flash options are required")),
+        _ => Err(wrong_options("PT-flash")),
     }
+}
+
+/// The fields of a phase envelope: the boundary as vectors in trace order (bubble branch,
+/// critical point, dew branch), the marked points, and the quality lines concatenated with the
+/// vapour fraction of each point.
+fn envelope_fields(rec: &mut Record, env: &PhaseEnvelope) {
+    let col = |pts: &[EnvelopePoint], f: fn(&EnvelopePoint) -> f64| pts.iter().map(f).collect::<Vec<f64>>();
+    let pts = &env.points;
+    rec.numbers("temperature", "K", col(pts, |p| p.temperature))
+        .numbers("pressure", "Pa", col(pts, |p| p.pressure))
+        .numbers("vapor_fraction", "1", col(pts, |p| p.vapor_fraction))
+        .table("incipient", "1", pts.iter().map(|p| p.incipient.clone()).collect())
+        .numbers(
+            "critical_temperature",
+            "K",
+            env.critical.iter().map(|c| c.temperature).collect(),
+        )
+        .numbers(
+            "critical_pressure",
+            "Pa",
+            env.critical.iter().map(|c| c.pressure).collect(),
+        )
+        .maybe(
+            "cricondenbar_temperature",
+            "K",
+            env.cricondenbar.as_ref().map(|p| p.temperature),
+        )
+        .maybe(
+            "cricondenbar_pressure",
+            "Pa",
+            env.cricondenbar.as_ref().map(|p| p.pressure),
+        )
+        .maybe(
+            "cricondentherm_temperature",
+            "K",
+            env.cricondentherm.as_ref().map(|p| p.temperature),
+        )
+        .maybe(
+            "cricondentherm_pressure",
+            "Pa",
+            env.cricondentherm.as_ref().map(|p| p.pressure),
+        );
+    let q: Vec<&EnvelopePoint> = env.quality_lines.iter().flatten().collect();
+    rec.numbers(
+        "quality_line_fraction",
+        "1",
+        q.iter().map(|p| p.vapor_fraction).collect(),
+    )
+    .numbers(
+        "quality_line_temperature",
+        "K",
+        q.iter().map(|p| p.temperature).collect(),
+    )
+    .numbers("quality_line_pressure", "Pa", q.iter().map(|p| p.pressure).collect());
 }
 
 /// The derivatives of a flash result (see [`FlashSensitivities`]): per T (…_dt), per p

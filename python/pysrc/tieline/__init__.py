@@ -43,7 +43,7 @@ from ._api import (
 )
 from ._pure import PureSubstance
 from ._calc import Record, Sweep, calculate, calculations, describe
-from ._named import flash_sensitivities
+from ._named import critical_point, flash_sensitivities, phase_envelope
 from ._errors import (
     ConvergenceError,
     DataError,
@@ -95,6 +95,8 @@ __all__ = [
     "PureSubstance",
     "calculate",
     "flash_sensitivities",
+    "phase_envelope",
+    "critical_point",
     "calculations",
     "describe",
     "Record",

@@ -13,7 +13,7 @@ from typing import Any, Optional
 from ._calc import calculate
 from ._core import Model
 
-__all__ = ["flash_sensitivities"]
+__all__ = ["flash_sensitivities", "phase_envelope", "critical_point"]
 
 
 def flash_sensitivities(
@@ -43,3 +43,31 @@ def flash_sensitivities(
         "flash_sensitivities", model, temperature, pressure, feed=feed, block=block, threads=threads,
         progress=progress, on_error=on_error, **options,
     )
+
+
+def phase_envelope(
+    model: Model, feed: Any, *, threads: Optional[int] = None, on_error: str = "raise", **options: Any
+) -> Any:
+    """The saturation boundary of a mixture: the bubble branch, the critical point and the dew
+    branch traced by continuation in ln K, ln T, ln p (Michelsen 1980).
+
+    Fields: ``temperature`` (K), ``pressure`` (Pa), ``vapor_fraction`` (0 on the bubble branch,
+    1 on the dew branch) and ``incipient`` (composition of the other phase) in trace order;
+    ``critical_temperature``/``critical_pressure`` (where the trace crossed a critical point);
+    ``cricondenbar_*`` and ``cricondentherm_*``; ``quality_line_fraction``,
+    ``quality_line_temperature``, ``quality_line_pressure`` (the requested quality lines,
+    concatenated). Options: ``start_pressure`` (Pa, default 1e5), ``quality_lines`` (vapour
+    fractions), ``max_points``, ``max_step``, ``tolerance``. Rows of feeds give a
+    :class:`~tieline.Sweep` (vectors padded with NaN).
+    """
+    return calculate("phase_envelope", model, feed=feed, threads=threads, on_error=on_error, **options)
+
+
+def critical_point(
+    model: Model, feed: Any, *, threads: Optional[int] = None, on_error: str = "raise", **options: Any
+) -> Any:
+    """The critical point of a mixture (Heidemann & Khalil 1980 criteria, in Michelsen's 1984
+    form): fields ``temperature`` (K), ``pressure`` (Pa), ``molar_volume`` (m3/mol),
+    ``iterations``. Options: ``tolerance``, ``max_iterations``, ``initial_temperature``,
+    ``initial_volume``."""
+    return calculate("critical_point", model, feed=feed, threads=threads, on_error=on_error, **options)

@@ -14,6 +14,7 @@ pub mod rachford_rice;
 pub mod saturation;
 pub mod solid_flash;
 pub mod stability;
+pub mod state_flash;
 
 pub use batch::flash_batch;
 pub use flash::{Diagnostics, FlashContext, FlashOptions, FlashResult, Phase, TieLine, flash_pt};
@@ -27,6 +28,10 @@ pub use solid_flash::{
     frost_point_temperature,
 };
 pub use stability::{StabilityOptions, StabilityResult, StationaryPoint, TrialSet, stability};
+pub use state_flash::{
+    StateFlashContext, StateFlashOptions, StateFlashResult, StateSpec, flash_ph, flash_ps, flash_state, flash_tv,
+    flash_uv,
+};
 
 use crate::model::{FugacityWork, LnPhi};
 

@@ -544,7 +544,10 @@ where
     let mut fallbacks = 0usize;
     let mut limit_moves = 0usize;
     let mut soft_failures = 0usize;
-    let mut good: Option<f64> = None;
+    // The last point that evaluated (a seeded saturation point counts).
+    let mut good: Option<Point> = s.hi.or(s.lo);
+    // The nearest points below and above the working region where the inner solve failed.
+    let (mut bad_lo, mut bad_hi) = (f64::NEG_INFINITY, f64::INFINITY);
     let mut f_abs = f64::INFINITY;
     while s.iterations < s.max_iter {
         let (f, slope) = match eval(x) {
@@ -567,10 +570,28 @@ where
                 }
                 // A failure of the inner solve at a trial point: retreat towards the last
                 // point that worked, or try the second start.
-                if soft_failures < 10 && matches!(e.kind(), ErrorKind::NoSolution | ErrorKind::NotConverged) {
+                if soft_failures < 60 && matches!(e.kind(), ErrorKind::NoSolution | ErrorKind::NotConverged) {
                     soft_failures += 1;
                     if let Some(g) = good {
-                        x = 0.5 * (x + g);
+                        if x < g.x {
+                            bad_lo = bad_lo.max(x);
+                        } else {
+                            bad_hi = bad_hi.min(x);
+                        }
+                        // Narrowed down to the edge of the model's domain next to a point that
+                        // works: that point is the end of the reachable range.
+                        if (x - g.x).abs() <= 1e-9 * g.x.abs().max(1.0) {
+                            if x < g.x && g.f > 0.0 {
+                                s.lim.0 = g.x;
+                                return Ok(Outcome::Below(g));
+                            }
+                            if x > g.x && g.f < 0.0 {
+                                s.lim.1 = g.x;
+                                return Ok(Outcome::Above(g));
+                            }
+                            return Err(e);
+                        }
+                        x = 0.5 * (x + g.x);
                         continue;
                     }
                     if let Some(a) = s.alt_starts.iter_mut().find_map(|a| a.take()) {
@@ -583,7 +604,7 @@ where
         };
         s.iterations += 1;
         s.last_f = f;
-        good = Some(x);
+        good = Some(Point { x, f });
         if !f.is_finite() {
             return Err(Error::NoSolution(format!(
                 "non-finite specification residual at x = {x}"
@@ -651,6 +672,13 @@ where
         };
         f_abs = f.abs();
         prev = Some(Point { x, f });
+        let mut next = next;
+        if next <= bad_lo {
+            next = 0.5 * (bad_lo + x);
+        }
+        if next >= bad_hi {
+            next = 0.5 * (bad_hi + x);
+        }
         x = next.clamp(s.lim.0, s.lim.1);
     }
     Ok(Outcome::Exhausted(s.last_f))
@@ -1436,7 +1464,14 @@ impl StateFlashContext {
                 Some((_, pp, _)) => Some(pp),
                 None => p_next.take(),
             };
-            inner += self.solve_tv(model, t, v, feed, opts, true, p0)?;
+            // A volume out of reach at this trial T (e.g. the pressures it needs cross a
+            // region of more phases than allowed) is a failure of this trial point only.
+            inner += match self.solve_tv(model, t, v, feed, opts, true, p0) {
+                Err(Error::OutsideValidity { what, detail, .. }) if what == "volume" => {
+                    return Err(Error::NoSolution(format!("TV flash at T = {t} K: {detail}")));
+                }
+                r => r?,
+            };
             let (val, s) = self.cur;
             let two_phase_pure = self.result.flash.phases.len() == 2 && single_component(&self.work.z).is_some();
             let cv = if two_phase_pure { f64::NAN } else { s.cv(val.p, val.v) };

@@ -1747,3 +1747,174 @@ pub fn flash_state<M: FluidModel + ?Sized>(
     let mut ctx = StateFlashContext::new(model.num_components());
     ctx.flash(model, spec, feed, opts).cloned()
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::equilibrium::flash_pt;
+    use crate::model::{CubicEos, CubicKind, PhaseState};
+    use crate::substance::DataBank;
+
+    /// METHODS §12 B2 (N2/C1/C2, PR, k_ij of Hua, Brennecke & Stadtherr 1998, from memory).
+    fn b2() -> CubicEos {
+        let comps = DataBank::embedded().get_many(&["nitrogen", "methane", "ethane"]).unwrap();
+        CubicEos::new(CubicKind::PengRobinson, comps)
+            .and_then(|m| m.with_pair(0, 1, 0.038, 0.0))
+            .and_then(|m| m.with_pair(0, 2, 0.08, 0.0))
+            .and_then(|m| m.with_pair(1, 2, 0.021, 0.0))
+            .unwrap()
+    }
+
+    fn state(m: &CubicEos, t: f64, p: f64, z: &[f64]) -> (Values, Slopes) {
+        let r = flash_pt(m, t, p, z, &FlashOptions::default()).unwrap();
+        let mut w = Work::default();
+        w.resize(z.len());
+        w.z.copy_from_slice(z);
+        let (v, frozen) = evaluate(m, &r, true, &mut w).unwrap();
+        (v, slopes(m, &r, frozen, &mut w))
+    }
+
+    #[test]
+    fn two_phase_slopes_match_central_differences() {
+        let m = b2();
+        let z = [0.3, 0.1, 0.6];
+        let (t, p) = (200.0, 2e6);
+        let (v0, s) = state(&m, t, p, &z);
+        let (dt, dp) = (1e-3, 10.0);
+        let (a, b) = (state(&m, t + dt, p, &z).0, state(&m, t - dt, p, &z).0);
+        let (c, d) = (state(&m, t, p + dp, &z).0, state(&m, t, p - dp, &z).0);
+        let fd_ht = (a.h - b.h) / (2.0 * dt);
+        let fd_vt = (a.v - b.v) / (2.0 * dt);
+        let fd_vp = (c.v - d.v) / (2.0 * dp);
+        let fd_hp = (c.h - d.h) / (2.0 * dp);
+        assert!((s.h_t / fd_ht - 1.0).abs() < 1e-5, "{} vs {fd_ht}", s.h_t);
+        assert!((s.v_t / fd_vt - 1.0).abs() < 1e-5, "{} vs {fd_vt}", s.v_t);
+        assert!((s.v_p / fd_vp - 1.0).abs() < 1e-5, "{} vs {fd_vp}", s.v_p);
+        assert!((s.h_p / fd_hp - 1.0).abs() < 1e-4, "{} vs {fd_hp}", s.h_p);
+        // The phase change adds to the frozen c_p.
+        let r = flash_pt(&m, t, p, &z, &FlashOptions::default()).unwrap();
+        assert_eq!(r.phases.len(), 2);
+        let cpf = r.mixture_properties(&m).unwrap().cp_frozen;
+        assert!(s.h_t > 1.01 * cpf, "{} vs frozen {cpf}", s.h_t);
+        assert!(v0.h.is_finite());
+    }
+
+    #[test]
+    fn propane_ph_and_ps_across_the_dome() {
+        let m = CubicEos::new(
+            CubicKind::PengRobinson,
+            DataBank::embedded().get_many(&["propane"]).unwrap(),
+        )
+        .unwrap();
+        let p = 1e6;
+        let sat = saturation_temperature(&m, p, 0, &SaturationOptions::default()).unwrap();
+        let ts = sat.temperature;
+        let l = PhaseState::new(&m, ts, p, &[1.0], RootChoice::Liquid).unwrap().properties(&m).unwrap();
+        let v = PhaseState::new(&m, ts, p, &[1.0], RootChoice::Vapor).unwrap().properties(&m).unwrap();
+        let o = StateFlashOptions::default();
+        for beta in [1e-6, 0.25, 0.5, 1.0 - 1e-6] {
+            let h = l.enthalpy + beta * (v.enthalpy - l.enthalpy);
+            let r = flash_ph(&m, p, h, &[1.0], &o).unwrap();
+            assert_eq!(r.flash.temperature, ts);
+            assert!((r.flash.vapor_fraction() - beta).abs() < 1e-9, "{beta}");
+            let s = l.entropy + beta * (v.entropy - l.entropy);
+            let r = flash_ps(&m, p, s, &[2.0], &o).unwrap();
+            assert!((r.flash.vapor_fraction() - beta).abs() < 1e-9, "{beta}");
+            assert!((r.flash.phases[0].amount - 2.0 * beta).abs() < 1e-8);
+        }
+        // Just outside the dome: one phase, on the right side of T_sat.
+        let r = flash_ph(&m, p, l.enthalpy - 1.0, &[1.0], &o).unwrap();
+        assert_eq!(r.flash.phases.len(), 1);
+        assert!(r.flash.temperature < ts && r.flash.temperature > ts - 0.1);
+        assert_eq!(r.flash.phases[0].kind, Some(PhaseKind::Liquid));
+        let r = flash_ph(&m, p, v.enthalpy + 1.0, &[1.0], &o).unwrap();
+        assert_eq!(r.flash.phases.len(), 1);
+        assert!(r.flash.temperature > ts && r.flash.temperature < ts + 0.1);
+        assert_eq!(r.flash.phases[0].kind, Some(PhaseKind::Vapor));
+        // TV inside the dome at T_sat: the vapour pressure and the lever rule in volume.
+        let vm = 0.5 * (l.molar_volume + v.molar_volume);
+        let r = flash_tv(&m, ts, vm, &[1.0], &o).unwrap();
+        assert!((r.flash.pressure / p - 1.0).abs() < 1e-9, "{}", r.flash.pressure);
+        assert!((r.flash.vapor_fraction() - 0.5).abs() < 1e-7);
+    }
+
+    #[test]
+    fn context_follows_a_heating_path_with_warm_starts() {
+        let m = b2();
+        let z = [0.3, 0.1, 0.6];
+        let p = 2e6;
+        let o = StateFlashOptions::default();
+        let mut ctx = StateFlashContext::new(3);
+        let (mut warm_flashes, mut cold_flashes) = (0, 0);
+        for k in 0..40 {
+            let t = 150.0 + 2.5 * k as f64;
+            let h = state(&m, t, p, &z).0.h;
+            let spec = StateSpec::PressureEnthalpy { pressure: p, enthalpy: h };
+            let r = ctx.flash(&m, &spec, &z, &o).unwrap();
+            assert!((r.flash.temperature / t - 1.0).abs() < 1e-9, "{t}: {}", r.flash.temperature);
+            warm_flashes += r.pt_flashes;
+            cold_flashes += flash_state(&m, &spec, &z, &o).unwrap().pt_flashes;
+        }
+        assert!(warm_flashes < cold_flashes, "{warm_flashes} vs {cold_flashes}");
+        ctx.reset();
+        assert!(ctx.last().spec.is_some());
+    }
+
+    #[test]
+    fn bad_input_is_typed() {
+        let m = b2();
+        let z = [0.3, 0.1, 0.6];
+        let o = StateFlashOptions::default();
+        let e = flash_ph(&m, 1e6, f64::NAN, &z, &o).unwrap_err();
+        assert_eq!(e.kind(), ErrorKind::InvalidInput);
+        assert!(e.to_string().contains("finite"));
+        let e = flash_uv(&m, f64::INFINITY, 1e-3, &z, &o).unwrap_err();
+        assert_eq!(e.kind(), ErrorKind::InvalidInput);
+        let e = flash_tv(&m, f64::NAN, 1e-3, &z, &o).unwrap_err();
+        assert_eq!(e.kind(), ErrorKind::InvalidInput);
+        let e = flash_tv(&m, 250.0, -1e-3, &z, &o).unwrap_err();
+        assert_eq!(e.kind(), ErrorKind::InvalidInput);
+        let e = flash_ps(&m, 1e6, -150.0, &[f64::NAN, 0.5, 0.5], &o).unwrap_err();
+        assert_eq!(e.kind(), ErrorKind::InvalidInput);
+        let bad = StateFlashOptions {
+            temperature_range: Some((300.0, 200.0)),
+            ..Default::default()
+        };
+        let e = flash_ph(&m, 1e6, -6e4, &z, &bad).unwrap_err();
+        assert!(e.to_string().contains("temperature_range"));
+        let bad = StateFlashOptions {
+            tolerance: 0.0,
+            ..Default::default()
+        };
+        assert_eq!(flash_ph(&m, 1e6, -6e4, &z, &bad).unwrap_err().kind(), ErrorKind::InvalidInput);
+        // A range too narrow to hold the state: the reachable interval is in the message.
+        let narrow = StateFlashOptions {
+            temperature_range: Some((250.0, 260.0)),
+            ..Default::default()
+        };
+        let h = state(&m, 300.0, 1e6, &z).0.h;
+        let e = flash_ph(&m, 1e6, h, &z, &narrow).unwrap_err();
+        assert_eq!(e.kind(), ErrorKind::OutsideValidity);
+        assert!(e.to_string().contains("[250, 260] K"), "{e}");
+        // Too few iterations: not converged, with diagnostics.
+        let few = StateFlashOptions {
+            max_iterations: 1,
+            ..Default::default()
+        };
+        let h = state(&m, 200.0, 2e6, &z).0.h;
+        let e = flash_ph(&m, 2e6, h, &z, &few).unwrap_err();
+        assert_eq!(e.kind(), ErrorKind::NotConverged);
+        assert!(e.to_string().contains("outer"), "{e}");
+    }
+
+    #[test]
+    fn spec_serialises_with_a_tag() {
+        let s = StateSpec::PressureEnthalpy {
+            pressure: 1e5,
+            enthalpy: -2.4e5,
+        };
+        let j = serde_json::to_string(&s).unwrap();
+        assert!(j.contains("\"spec\":\"pressure_enthalpy\""), "{j}");
+        assert_eq!(serde_json::from_str::<StateSpec>(&j).unwrap(), s);
+    }
+}

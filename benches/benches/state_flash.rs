@@ -58,14 +58,18 @@ fn benches(c: &mut Criterion) {
     g.bench_function("warm_ph", |b| {
         b.iter(|| {
             k += 1;
-            sf.flash(&m, black_box(&specs[k % 2]), &FEED, &sopts).unwrap().pt_flashes
+            sf.flash(&m, black_box(&specs[k % 2]), &FEED, &sopts)
+                .unwrap()
+                .pt_flashes
         })
     });
     g.bench_function("cold_ph", |b| {
         b.iter(|| {
             k += 1;
             sf.reset();
-            sf.flash(&m, black_box(&specs[k % 2]), &FEED, &sopts).unwrap().pt_flashes
+            sf.flash(&m, black_box(&specs[k % 2]), &FEED, &sopts)
+                .unwrap()
+                .pt_flashes
         })
     });
     g.finish();

@@ -29,7 +29,18 @@
 //! [x_lo, x_hi] of opposite residual signs; a step that leaves it, or does not reduce the
 //! residual, is replaced by regula falsi and, if that repeats, by bisection, so the iteration
 //! converges whatever the slopes. Before a bracket exists, steps are limited to 30 % of T or a
-//! factor e² in p.
+//! factor e² in p. Since the equilibrium dH/dT and −dV/dp are at least their frozen values, a
+//! residual that already passes the convergence test with the frozen slope is accepted without
+//! the composition derivatives. A trial point where the inner flash fails (e.g. a state with
+//! more phases than [`FlashOptions::max_phases`]) is retreated from towards the last point that
+//! worked; the edge of the model's domain found that way ends the reachable range.
+//!
+//! A [`StateFlashContext`] starts from the previous solution by a Newton step with its slopes
+//! (for PH, T₀ = T + (h − h_prev − (∂H/∂p)_T Δp)/(∂H/∂T)_p), and its inner [`FlashContext`]
+//! from the previous K-values; after warm-up a warm call allocates nothing. A cold call starts
+//! from the temperature where the feed as one homogeneous phase (its stable root; at fixed V
+//! for UV) meets the specification, with the ideal-gas temperature, Kay's pseudo-critical
+//! temperature and the middle of the range as further starts.
 //!
 //! # Pure components
 //! For a feed of one component H(T) at fixed p jumps by the enthalpy of vaporisation at
@@ -296,13 +307,14 @@ fn ideal_gas_at<M: FluidModel + ?Sized>(model: &M, t: f64, w: &mut Work) -> Resu
 }
 
 /// Evaluates every phase of `r` (with composition, T and p derivatives of ln φ when there are
-/// two phases and `slopes` is asked for) and returns the mixture values and frozen slopes.
+/// two phases and `derivs` is set, as [`slopes`] needs) and returns the mixture values and frozen slopes.
 /// With `energies` false, h, s and u are left at zero (the ideal-gas part is not needed).
 /// The same formulas as [`crate::model::PhaseState::properties`].
 fn evaluate<M: FluidModel + ?Sized>(
     model: &M,
     r: &FlashResult,
     energies: bool,
+    derivs: bool,
     w: &mut Work,
 ) -> Result<(Values, Slopes)> {
     let (t, p) = (r.temperature, r.pressure);
@@ -310,7 +322,7 @@ fn evaluate<M: FluidModel + ?Sized>(
     if energies {
         ideal_gas_at(model, t, w)?;
     }
-    let two = r.phases.len() == 2;
+    let two = r.phases.len() == 2 && derivs;
     let need = Need {
         composition: two,
         temperature: true,
@@ -824,6 +836,14 @@ pub struct StateFlashContext {
     scratch: FlashResult,
     nc: usize,
     pt_flashes: usize,
+    /// Whether `cur.1` holds equilibrium (not frozen) slopes.
+    cur_exact: bool,
+    /// The default temperature range found for the components named in `range_names` with
+    /// the feed's support `range_support` (probing the correlations allocates error messages,
+    /// so it is done once per model and feed support).
+    range: Option<(f64, f64)>,
+    range_names: Vec<String>,
+    range_support: Vec<bool>,
 }
 
 impl StateFlashContext {
@@ -841,6 +861,8 @@ impl StateFlashContext {
     /// Forgets the previous solution, so the next call starts cold.
     pub fn reset(&mut self) {
         self.last = None;
+        self.cur_exact = false;
+        self.range = None;
         self.flash.reset();
     }
 
@@ -918,12 +940,29 @@ impl StateFlashContext {
         feed: &[f64],
         opts: &StateFlashOptions,
         energies: bool,
+        done: impl Fn(&Values, &Slopes) -> bool,
     ) -> Result<()> {
         self.pt_flashes += 1;
         let r = self.flash.flash(model, t, p, feed, &opts.flash)?;
-        let (val, frozen) = evaluate(model, r, energies, &mut self.work)?;
+        let two = r.phases.len() == 2;
+        let (val, frozen) = evaluate(model, r, energies, false, &mut self.work)?;
+        if !two {
+            self.cur = (val, frozen);
+            self.cur_exact = true;
+            return Ok(());
+        }
+        // The equilibrium slope is at least the frozen one (module docs), so a residual that
+        // passes the convergence test with the frozen slope needs no derivatives; the slopes
+        // kept for the next warm start are then those of the previous, nearby iterate.
+        if done(&val, &frozen) {
+            let kept = if self.cur_exact { self.cur.1 } else { frozen };
+            self.cur = (val, kept);
+            return Ok(());
+        }
+        let (val, frozen) = evaluate(model, r, energies, true, &mut self.work)?;
         let sl = slopes(model, r, frozen, &mut self.work);
         self.cur = (val, sl);
+        self.cur_exact = true;
         Ok(())
     }
 
@@ -932,6 +971,27 @@ impl StateFlashContext {
         copy_flash(&mut self.result.flash, self.flash.last());
         self.result.residual = residual;
         self.last = Some((self.cur.0, Some(self.cur.1)));
+    }
+
+    /// The temperature search range (K), from the cache when the components and the feed's
+    /// support are those it was found for.
+    fn temperature_range<M: FluidModel + ?Sized>(&mut self, model: &M, opts: &StateFlashOptions) -> Result<(f64, f64)> {
+        if let Some(r) = opts.temperature_range {
+            return Ok(r);
+        }
+        let z = &self.work.z;
+        let nc = z.len();
+        let same = self.range.is_some()
+            && self.range_names.len() == nc
+            && (0..nc).all(|i| self.range_names[i] == model.component_name(i) && self.range_support[i] == (z[i] > 0.0));
+        if let (true, Some(r)) = (same, self.range) {
+            return Ok(r);
+        }
+        let r = temperature_range(model, z, opts)?;
+        self.range = Some(r);
+        self.range_names = (0..nc).map(|i| model.component_name(i).to_string()).collect();
+        self.range_support = z.iter().map(|x| *x > 0.0).collect();
+        Ok(r)
     }
 
     /// PH and PS: temperature search at fixed p.
@@ -944,7 +1004,7 @@ impl StateFlashContext {
         feed: &[f64],
         opts: &StateFlashOptions,
     ) -> Result<()> {
-        let lim = temperature_range(model, &self.work.z, opts)?;
+        let lim = self.temperature_range(model, opts)?;
         let scale = kind.scale(q);
         let full = lim;
         let mut search = Search::new(Unknown::Temperature, opts, lim);
@@ -966,13 +1026,20 @@ impl StateFlashContext {
             Some((v, _)) => v.t,
             None => self.frozen_temperature(model, p, kind, q, scale, search.lim),
         };
+        let cold = self.last.is_none();
         search.alt_starts = [
-            ideal_gas_temperature(model, &self.work.z, kind, q, 0.0, search.lim),
+            cold.then(|| ideal_gas_temperature(model, &self.work.z, kind, q, 0.0, search.lim))
+                .flatten(),
             Some(pseudo_critical_temperature(model, &self.work.z)),
             Some((search.lim.0 * search.lim.1).sqrt()),
         ];
+        let tol = opts.tolerance;
         let outcome = solve_monotone(&mut search, t0, |t| {
-            self.pt(model, t, p, feed, opts, true)?;
+            let done = |v: &Values, s: &Slopes| {
+                let f = (kind.of(v) - q) / scale;
+                f.abs() <= tol && (f * scale / kind.slope(s, t)).abs() <= tol * t
+            };
+            self.pt(model, t, p, feed, opts, true, done)?;
             let (v, s) = self.cur;
             Ok(((kind.of(&v) - q) / scale, kind.slope(&s, t) / scale))
         })?;
@@ -989,7 +1056,7 @@ impl StateFlashContext {
                 // The value at the other end of the range, for the message.
                 let other_t = if below { full.1 } else { search.lim.0 };
                 let other = self
-                    .pt(model, other_t, p, feed, opts, true)
+                    .pt(model, other_t, p, feed, opts, true, |_, _| false)
                     .map(|_| kind.of(&self.cur.0))
                     .unwrap_or(if below { f64::INFINITY } else { f64::NEG_INFINITY });
                 let (min, max) = if below { (at, other) } else { (other, at) };
@@ -1086,7 +1153,7 @@ impl StateFlashContext {
             }
             r.temperature = t;
             r.phases[0].molar_volume = self.work.ph[0].phi.v;
-            let Ok((v, s)) = evaluate(model, &r, true, &mut self.work) else {
+            let Ok((v, s)) = evaluate(model, &r, true, false, &mut self.work) else {
                 break;
             };
             let f = (kind.of(&v) - q) / scale;
@@ -1155,7 +1222,7 @@ impl StateFlashContext {
         if q > ql && q < qv {
             let beta = (q - ql) / (qv - ql);
             self.saturated_pair(model, ts, p, feed, ntot, beta, true)?;
-            let (v, _) = evaluate(model, &self.result.flash, true, &mut self.work)?;
+            let (v, _) = evaluate(model, &self.result.flash, true, false, &mut self.work)?;
             let residual = (kind.of(&v) - q).abs() / scale;
             let fug = self.result.flash.diagnostics.residual;
             if residual > opts_tolerance_check(search.tol) || fug > 1e-8 {
@@ -1253,7 +1320,7 @@ impl StateFlashContext {
         // Both phases have the feed's composition and equal fugacity by construction; no
         // stability test is run.
         r.diagnostics.certificate = None;
-        let _ = evaluate(model, r, energies, &mut self.work)?;
+        let _ = evaluate(model, r, energies, false, &mut self.work)?;
         Ok(())
     }
 
@@ -1285,7 +1352,7 @@ impl StateFlashContext {
                         let ntot: f64 = feed.iter().sum();
                         let beta = (v - vl) / (vv - vl);
                         self.saturated_pair(model, t, sat.pressure, feed, ntot, beta, energies)?;
-                        let (val, _) = evaluate(model, &self.result.flash, energies, &mut self.work)?;
+                        let (val, _) = evaluate(model, &self.result.flash, energies, false, &mut self.work)?;
                         let residual = (val.v - v).abs() / v;
                         if residual > opts_tolerance_check(opts.tolerance)
                             || self.result.flash.diagnostics.residual > 1e-8
@@ -1299,6 +1366,7 @@ impl StateFlashContext {
                         }
                         self.result.residual = residual;
                         self.cur = (val, Slopes::default());
+                        self.cur_exact = false;
                         self.last = Some((val, None));
                         return Ok(0);
                     }
@@ -1341,7 +1409,12 @@ impl StateFlashContext {
         };
         let outcome = solve_monotone(&mut search, guess.ln(), |lnp| {
             let p = lnp.exp();
-            self.pt(model, t, p, feed, opts, energies)?;
+            let tol = opts.tolerance;
+            let done = |val: &Values, s: &Slopes| {
+                let f = (v - val.v) / v;
+                f.abs() <= tol && (f * v / (p * s.v_p)).abs() <= tol
+            };
+            self.pt(model, t, p, feed, opts, energies, done)?;
             let (val, s) = self.cur;
             Ok(((v - val.v) / v, -p * s.v_p / v))
         })?;
@@ -1357,7 +1430,7 @@ impl StateFlashContext {
                 let at = v - pt.f * v;
                 let other_p = if below { search.lim.1 } else { search.lim.0 }.exp();
                 let other = self
-                    .pt(model, t, other_p, feed, opts, false)
+                    .pt(model, t, other_p, feed, opts, false, |_, _| false)
                     .map(|_| self.cur.0.v)
                     .unwrap_or(if below { 0.0 } else { f64::INFINITY });
                 let (min, max) = if below { (other, at) } else { (at, other) };
@@ -1425,7 +1498,7 @@ impl StateFlashContext {
         feed: &[f64],
         opts: &StateFlashOptions,
     ) -> Result<()> {
-        let lim = temperature_range(model, &self.work.z, opts)?;
+        let lim = self.temperature_range(model, opts)?;
         let scale = u.abs().max(R * T_REFERENCE);
         // The volume must be reachable at all (co-volume), checked once.
         self.homogeneous_pressure(model, lim.0.max(T_REFERENCE.min(lim.1)), v)?;
@@ -1448,9 +1521,11 @@ impl StateFlashContext {
             None => (self.homogeneous_temperature(model, u, v, scale, lim), None),
         };
         let mut search = Search::new(Unknown::Temperature, opts, lim);
+        let cold = self.last.is_none();
         search.alt_starts = [
             Some(pseudo_critical_temperature(model, &self.work.z)),
-            ideal_gas_temperature(model, &self.work.z, Energy::Enthalpy, u, 1.0, lim),
+            cold.then(|| ideal_gas_temperature(model, &self.work.z, Energy::Enthalpy, u, 1.0, lim))
+                .flatten(),
             Some((lim.0 * lim.1).sqrt()),
         ];
         let mut prev: Option<(f64, f64, f64)> = None; // (T, p, (∂p/∂T)_V)
@@ -1757,7 +1832,9 @@ mod tests {
 
     /// METHODS §12 B2 (N2/C1/C2, PR, k_ij of Hua, Brennecke & Stadtherr 1998, from memory).
     fn b2() -> CubicEos {
-        let comps = DataBank::embedded().get_many(&["nitrogen", "methane", "ethane"]).unwrap();
+        let comps = DataBank::embedded()
+            .get_many(&["nitrogen", "methane", "ethane"])
+            .unwrap();
         CubicEos::new(CubicKind::PengRobinson, comps)
             .and_then(|m| m.with_pair(0, 1, 0.038, 0.0))
             .and_then(|m| m.with_pair(0, 2, 0.08, 0.0))
@@ -1770,7 +1847,7 @@ mod tests {
         let mut w = Work::default();
         w.resize(z.len());
         w.z.copy_from_slice(z);
-        let (v, frozen) = evaluate(m, &r, true, &mut w).unwrap();
+        let (v, frozen) = evaluate(m, &r, true, true, &mut w).unwrap();
         (v, slopes(m, &r, frozen, &mut w))
     }
 
@@ -1809,8 +1886,14 @@ mod tests {
         let p = 1e6;
         let sat = saturation_temperature(&m, p, 0, &SaturationOptions::default()).unwrap();
         let ts = sat.temperature;
-        let l = PhaseState::new(&m, ts, p, &[1.0], RootChoice::Liquid).unwrap().properties(&m).unwrap();
-        let v = PhaseState::new(&m, ts, p, &[1.0], RootChoice::Vapor).unwrap().properties(&m).unwrap();
+        let l = PhaseState::new(&m, ts, p, &[1.0], RootChoice::Liquid)
+            .unwrap()
+            .properties(&m)
+            .unwrap();
+        let v = PhaseState::new(&m, ts, p, &[1.0], RootChoice::Vapor)
+            .unwrap()
+            .properties(&m)
+            .unwrap();
         let o = StateFlashOptions::default();
         for beta in [1e-6, 0.25, 0.5, 1.0 - 1e-6] {
             let h = l.enthalpy + beta * (v.enthalpy - l.enthalpy);
@@ -1849,9 +1932,16 @@ mod tests {
         for k in 0..40 {
             let t = 150.0 + 2.5 * k as f64;
             let h = state(&m, t, p, &z).0.h;
-            let spec = StateSpec::PressureEnthalpy { pressure: p, enthalpy: h };
+            let spec = StateSpec::PressureEnthalpy {
+                pressure: p,
+                enthalpy: h,
+            };
             let r = ctx.flash(&m, &spec, &z, &o).unwrap();
-            assert!((r.flash.temperature / t - 1.0).abs() < 1e-9, "{t}: {}", r.flash.temperature);
+            assert!(
+                (r.flash.temperature / t - 1.0).abs() < 1e-9,
+                "{t}: {}",
+                r.flash.temperature
+            );
             warm_flashes += r.pt_flashes;
             cold_flashes += flash_state(&m, &spec, &z, &o).unwrap().pt_flashes;
         }
@@ -1886,7 +1976,10 @@ mod tests {
             tolerance: 0.0,
             ..Default::default()
         };
-        assert_eq!(flash_ph(&m, 1e6, -6e4, &z, &bad).unwrap_err().kind(), ErrorKind::InvalidInput);
+        assert_eq!(
+            flash_ph(&m, 1e6, -6e4, &z, &bad).unwrap_err().kind(),
+            ErrorKind::InvalidInput
+        );
         // A range too narrow to hold the state: the reachable interval is in the message.
         let narrow = StateFlashOptions {
             temperature_range: Some((250.0, 260.0)),

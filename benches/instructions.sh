@@ -24,7 +24,7 @@ per_call() {
 }
 base=$(per_call ln-phi)
 printf '%-16s %14s %8s\n' operation instructions ratio
-for op in ln-phi ln-phi-derivs cold warm single-phase certificate cold-certified sensitivities; do
+for op in ln-phi ln-phi-derivs cold warm single-phase certificate cold-certified sensitivities warm-ph cold-ph; do
   n=$( [ "$op" = ln-phi ] && echo "$base" || per_call "$op")
   awk -v op="$op" -v n="$n" -v b="$base" 'BEGIN { printf "%-16s %14d %8.1f\n", op, n, n / b }'
 done

@@ -1,9 +1,13 @@
-//! Heap allocations per warm-started flash, and per sensitivity evaluation with reused work,
-//! after warm-up, counted by a counting global allocator (target: zero).
+//! Heap allocations per warm-started flash, per sensitivity evaluation with reused work, and
+//! per warm PH flash of a [`StateFlashContext`], after warm-up, counted by a counting global
+//! allocator (target: zero).
 
 use std::alloc::{GlobalAlloc, Layout, System};
 use std::sync::atomic::{AtomicUsize, Ordering};
-use tieline::equilibrium::{FlashContext, FlashOptions, FlashSensitivities, SensitivityWork};
+use tieline::equilibrium::{
+    FlashContext, FlashOptions, FlashSensitivities, SensitivityWork, StateFlashContext, StateFlashOptions, StateSpec,
+    flash_pt,
+};
 use tieline_benches::{FEED, TWO_PHASE, model};
 
 struct Counting;
@@ -70,6 +74,36 @@ fn main() {
     let after = ALLOCS.load(Ordering::Relaxed);
     println!(
         "heap allocations per sensitivity evaluation with reused work: {:.3} ({} over {calls})",
+        (after - before) as f64 / calls as f64,
+        after - before
+    );
+
+    // Warm PH flashes between the enthalpies of seven temperatures around the point.
+    let sopts = StateFlashOptions {
+        flash: opts,
+        ..Default::default()
+    };
+    let specs: Vec<StateSpec> = (0..7)
+        .map(|k| StateSpec::PressureEnthalpy {
+            pressure: p,
+            enthalpy: flash_pt(&m, t + 0.5 * (k as f64 - 3.0), p, &FEED, &opts)
+                .and_then(|r| r.mixture_properties(&m))
+                .unwrap()
+                .enthalpy,
+        })
+        .collect();
+    let mut sf = StateFlashContext::new(10);
+    for s in &specs {
+        sf.flash(&m, s, &FEED, &sopts).unwrap();
+    }
+    let calls = 700;
+    let before = ALLOCS.load(Ordering::Relaxed);
+    for k in 0..calls {
+        sf.flash(&m, &specs[k % 7], &FEED, &sopts).unwrap();
+    }
+    let after = ALLOCS.load(Ordering::Relaxed);
+    println!(
+        "heap allocations per warm PH flash after warm-up: {:.3} ({} allocations over {calls} flashes)",
         (after - before) as f64 / calls as f64,
         after - before
     );

@@ -6,11 +6,14 @@
 //!
 //! Usage: `tieline-instructions OPERATION REPETITIONS`, OPERATION one of `ln-phi`,
 //! `ln-phi-derivs`, `cold`, `warm`, `single-phase`, `certificate`, `cold-certified`,
-//! `sensitivities` (derivatives of the converged two-phase result, reused work).
+//! `sensitivities` (derivatives of the converged two-phase result, reused work), `warm-ph`
+//! (a warm PH flash alternating between the enthalpies of T ± 0.5 K at the two-phase point),
+//! `cold-ph` (the same from a reset context).
 
 use std::hint::black_box;
 use tieline::equilibrium::{
-    FlashContext, FlashOptions, FlashSensitivities, SensitivityWork, StabilityOptions, stability,
+    FlashContext, FlashOptions, FlashSensitivities, SensitivityWork, StabilityOptions, StateFlashContext,
+    StateFlashOptions, StateSpec, flash_pt, stability,
 };
 use tieline::model::{FugacityWork, LnPhi, Need, RootChoice, ln_phi};
 use tieline_benches::{FEED, ONE_PHASE, TWO_PHASE, equilibrium_liquid, model, no_certificate};
@@ -19,7 +22,7 @@ fn main() {
     let args: Vec<String> = std::env::args().collect();
     let usage = || -> ! {
         eprintln!(
-            "usage: {} OPERATION REPETITIONS (ln-phi, ln-phi-derivs, cold, warm, single-phase, certificate, cold-certified, sensitivities)",
+            "usage: {} OPERATION REPETITIONS (ln-phi, ln-phi-derivs, cold, warm, single-phase, certificate, cold-certified, sensitivities, warm-ph, cold-ph)",
             args[0]
         );
         std::process::exit(2)
@@ -89,6 +92,29 @@ fn main() {
             run(&mut || {
                 work.compute(&m, black_box(&r), &mut s).expect("sensitivities");
                 black_box(s.temperature.enthalpy);
+            })
+        }
+        "warm-ph" | "cold-ph" => {
+            let sopts = StateFlashOptions {
+                flash: nocert,
+                ..Default::default()
+            };
+            let specs = [t2 - 0.5, t2 + 0.5].map(|t| StateSpec::PressureEnthalpy {
+                pressure: p2,
+                enthalpy: flash_pt(&m, t, p2, &FEED, &nocert)
+                    .and_then(|r| r.mixture_properties(&m))
+                    .expect("flash")
+                    .enthalpy,
+            });
+            let cold = args[1] == "cold-ph";
+            let mut sf = StateFlashContext::new(10);
+            let mut k = 0usize;
+            run(&mut || {
+                k += 1;
+                if cold {
+                    sf.reset();
+                }
+                black_box(sf.flash(&m, &specs[k % 2], &FEED, &sopts).expect("PH flash").pt_flashes);
             })
         }
         _ => usage(),

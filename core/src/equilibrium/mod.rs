@@ -17,6 +17,7 @@ pub mod saturation;
 pub mod sensitivity;
 pub mod solid_flash;
 pub mod stability;
+pub mod state_flash;
 
 pub use batch::flash_batch;
 pub use critical::{CriticalOptions, CriticalPoint, critical_point};
@@ -33,6 +34,10 @@ pub use solid_flash::{
     frost_point_temperature,
 };
 pub use stability::{StabilityOptions, StabilityResult, StationaryPoint, TrialSet, stability};
+pub use state_flash::{
+    StateFlashContext, StateFlashOptions, StateFlashResult, StateSpec, flash_ph, flash_ps, flash_state, flash_tv,
+    flash_uv,
+};
 
 use crate::model::{FugacityWork, LnPhi};
 

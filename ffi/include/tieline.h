@@ -1387,6 +1387,74 @@ tl_status tl_critical_point(const struct tl_model *model,
                             struct tl_record *record);
 
 /**
+ * The equilibrium state at given pressure and molar enthalpy (a valve, a heater): `pressure` (Pa), `enthalpy` (J/mol), the feed (`nc`
+ * amounts, mol). The record holds the fields of a PT flash at the solution (`temperature`,
+ * `pressure`, phases ...), the iterations, and the derivatives of the solution with respect
+ * to the specification (absent where the equilibrium has none). `workspace` (nullable) warm-
+ * starts from its previous solution. An unreachable specification is
+ * `TL_STATUS_OUTSIDE_VALIDITY` or `TL_STATUS_NO_SOLUTION` with the bound in the message.
+ */
+tl_status tl_flash_ph(const struct tl_model *model,
+                      double pressure,
+                      double enthalpy,
+                      const double *feed,
+                      size_t nc,
+                      const char *options_json,
+                      struct tl_workspace *workspace,
+                      struct tl_record *record);
+
+/**
+ * The equilibrium state at given pressure and molar entropy (an isentropic compressor or expander): `pressure` (Pa), `entropy` (J/(mol K)), the feed (`nc`
+ * amounts, mol). The record holds the fields of a PT flash at the solution (`temperature`,
+ * `pressure`, phases ...), the iterations, and the derivatives of the solution with respect
+ * to the specification (absent where the equilibrium has none). `workspace` (nullable) warm-
+ * starts from its previous solution. An unreachable specification is
+ * `TL_STATUS_OUTSIDE_VALIDITY` or `TL_STATUS_NO_SOLUTION` with the bound in the message.
+ */
+tl_status tl_flash_ps(const struct tl_model *model,
+                      double pressure,
+                      double entropy,
+                      const double *feed,
+                      size_t nc,
+                      const char *options_json,
+                      struct tl_workspace *workspace,
+                      struct tl_record *record);
+
+/**
+ * The equilibrium state at given temperature and volume per mol of feed: `temperature` (K), `volume` (m3/mol), the feed (`nc`
+ * amounts, mol). The record holds the fields of a PT flash at the solution (`temperature`,
+ * `pressure`, phases ...), the iterations, and the derivatives of the solution with respect
+ * to the specification (absent where the equilibrium has none). `workspace` (nullable) warm-
+ * starts from its previous solution. An unreachable specification is
+ * `TL_STATUS_OUTSIDE_VALIDITY` or `TL_STATUS_NO_SOLUTION` with the bound in the message.
+ */
+tl_status tl_flash_tv(const struct tl_model *model,
+                      double temperature,
+                      double volume,
+                      const double *feed,
+                      size_t nc,
+                      const char *options_json,
+                      struct tl_workspace *workspace,
+                      struct tl_record *record);
+
+/**
+ * The equilibrium state at given molar internal energy and volume (a closed rigid vessel): `internal_energy` (J/mol), `volume` (m3/mol), the feed (`nc`
+ * amounts, mol). The record holds the fields of a PT flash at the solution (`temperature`,
+ * `pressure`, phases ...), the iterations, and the derivatives of the solution with respect
+ * to the specification (absent where the equilibrium has none). `workspace` (nullable) warm-
+ * starts from its previous solution. An unreachable specification is
+ * `TL_STATUS_OUTSIDE_VALIDITY` or `TL_STATUS_NO_SOLUTION` with the bound in the message.
+ */
+tl_status tl_flash_uv(const struct tl_model *model,
+                      double internal_energy,
+                      double volume,
+                      const double *feed,
+                      size_t nc,
+                      const char *options_json,
+                      struct tl_workspace *workspace,
+                      struct tl_record *record);
+
+/**
  * Ice Ih by the IAPWS-06 Gibbs function (IAPWS R10-06(2009)), species "water"; evaluated
  * for 0 < T ≤ 273.16 K and p ≤ 210 MPa. Its reference state is consistent
  * with the IAPWS-95 water model (`{"model": "iapws95"}`). On success `*out` receives a new

@@ -123,3 +123,139 @@ pub unsafe extern "C" fn tl_critical_point(
         }
     })
 }
+
+/// The equilibrium state at given pressure and molar enthalpy (a valve, a heater): `pressure` (Pa), `enthalpy` (J/mol), the feed (`nc`
+/// amounts, mol). The record holds the fields of a PT flash at the solution (`temperature`,
+/// `pressure`, phases ...), the iterations, and the derivatives of the solution with respect
+/// to the specification (absent where the equilibrium has none). `workspace` (nullable) warm-
+/// starts from its previous solution. An unreachable specification is
+/// `TL_STATUS_OUTSIDE_VALIDITY` or `TL_STATUS_NO_SOLUTION` with the bound in the message.
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_flash_ph(
+    model: *const tl_model,
+    pressure: f64,
+    enthalpy: f64,
+    feed: *const f64,
+    nc: usize,
+    options_json: *const c_char,
+    workspace: *mut tl_workspace,
+    record: *mut tl_record,
+) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        unsafe {
+            named(
+                "flash_ph",
+                options_json,
+                workspace,
+                model,
+                &[pressure, enthalpy],
+                feed,
+                nc,
+                record,
+            )
+        }
+    })
+}
+
+/// The equilibrium state at given pressure and molar entropy (an isentropic compressor or expander): `pressure` (Pa), `entropy` (J/(mol K)), the feed (`nc`
+/// amounts, mol). The record holds the fields of a PT flash at the solution (`temperature`,
+/// `pressure`, phases ...), the iterations, and the derivatives of the solution with respect
+/// to the specification (absent where the equilibrium has none). `workspace` (nullable) warm-
+/// starts from its previous solution. An unreachable specification is
+/// `TL_STATUS_OUTSIDE_VALIDITY` or `TL_STATUS_NO_SOLUTION` with the bound in the message.
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_flash_ps(
+    model: *const tl_model,
+    pressure: f64,
+    entropy: f64,
+    feed: *const f64,
+    nc: usize,
+    options_json: *const c_char,
+    workspace: *mut tl_workspace,
+    record: *mut tl_record,
+) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        unsafe {
+            named(
+                "flash_ps",
+                options_json,
+                workspace,
+                model,
+                &[pressure, entropy],
+                feed,
+                nc,
+                record,
+            )
+        }
+    })
+}
+
+/// The equilibrium state at given temperature and volume per mol of feed: `temperature` (K), `volume` (m3/mol), the feed (`nc`
+/// amounts, mol). The record holds the fields of a PT flash at the solution (`temperature`,
+/// `pressure`, phases ...), the iterations, and the derivatives of the solution with respect
+/// to the specification (absent where the equilibrium has none). `workspace` (nullable) warm-
+/// starts from its previous solution. An unreachable specification is
+/// `TL_STATUS_OUTSIDE_VALIDITY` or `TL_STATUS_NO_SOLUTION` with the bound in the message.
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_flash_tv(
+    model: *const tl_model,
+    temperature: f64,
+    volume: f64,
+    feed: *const f64,
+    nc: usize,
+    options_json: *const c_char,
+    workspace: *mut tl_workspace,
+    record: *mut tl_record,
+) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        unsafe {
+            named(
+                "flash_tv",
+                options_json,
+                workspace,
+                model,
+                &[temperature, volume],
+                feed,
+                nc,
+                record,
+            )
+        }
+    })
+}
+
+/// The equilibrium state at given molar internal energy and volume (a closed rigid vessel): `internal_energy` (J/mol), `volume` (m3/mol), the feed (`nc`
+/// amounts, mol). The record holds the fields of a PT flash at the solution (`temperature`,
+/// `pressure`, phases ...), the iterations, and the derivatives of the solution with respect
+/// to the specification (absent where the equilibrium has none). `workspace` (nullable) warm-
+/// starts from its previous solution. An unreachable specification is
+/// `TL_STATUS_OUTSIDE_VALIDITY` or `TL_STATUS_NO_SOLUTION` with the bound in the message.
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_flash_uv(
+    model: *const tl_model,
+    internal_energy: f64,
+    volume: f64,
+    feed: *const f64,
+    nc: usize,
+    options_json: *const c_char,
+    workspace: *mut tl_workspace,
+    record: *mut tl_record,
+) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        unsafe {
+            named(
+                "flash_uv",
+                options_json,
+                workspace,
+                model,
+                &[internal_energy, volume],
+                feed,
+                nc,
+                record,
+            )
+        }
+    })
+}

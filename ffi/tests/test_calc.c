@@ -185,6 +185,32 @@ int main(void) {
         "an absurd point limit is refused");
   (void)pc;
 
+  /* PH flash of water inside its two-phase dome at 1 atm: the normal boiling point of
+   * IAPWS-95, 373.124 K (IAPWS R6-95(2018); the value to 1 mK from memory). */
+  {
+    const tl_model *water = NULL;
+    OK(tl_model_from_json("{\"model\": \"iapws95\"}", &water));
+    const double one[1] = {1.0};
+    double hl = 0, hv = 0, t = 0, beta = 0;
+    OK(tl_flash_ph(water, 101325.0, -280000.0, one, 1, NULL, NULL, rec)); /* liquid */
+    OK(tl_record_number(rec, "enthalpy", &hl));
+    OK(tl_flash_ph(water, 101325.0, -240000.0, one, 1, NULL, NULL, rec)); /* vapour */
+    OK(tl_record_number(rec, "enthalpy", &hv));
+    CHECK(fabs(hl + 280000.0) < 1e-4 && fabs(hv + 240000.0) < 1e-4, "the enthalpy is met");
+    OK(tl_flash_ph(water, 101325.0, -255000.0, one, 1, NULL, NULL, rec));
+    OK(tl_record_number(rec, "temperature", &t));
+    OK(tl_record_number(rec, "vapor_fraction", &beta));
+    CHECK(fabs(t - 373.124) < 1e-3 && beta > 0 && beta < 1, "two phases at the normal boiling point");
+    CHECK(tl_record_number(rec, "d_temperature_d_enthalpy", &t) == TL_STATUS_NO_SOLUTION,
+          "no derivative of a pure substance inside the dome");
+    CHECK(tl_flash_ph(water, 101325.0, 1.0e6, one, 1, NULL, NULL, rec) == TL_STATUS_OUTSIDE_VALIDITY &&
+              last_error_contains("1273.15"),
+          "an enthalpy above the model's range names the bound");
+    CHECK(tl_flash_tv(water, 300.0, -1.0, one, 1, NULL, NULL, rec) == TL_STATUS_INVALID_INPUT, "negative volume");
+    CHECK(tl_flash_uv(water, NAN, 1e-3, one, 1, NULL, NULL, rec) == TL_STATUS_INVALID_INPUT, "NaN energy");
+    tl_model_free(water);
+  }
+
   tl_result_free(res);
   tl_record_free(rec);
   tl_workspace_free(ws);

@@ -141,3 +141,30 @@ def test_envelope_and_critical_point_by_name(gas):
         tl.phase_envelope(gas, [1.0, 0.0])
     with pytest.raises(tl.InvalidInputError, match="quality"):
         tl.phase_envelope(gas, [0.6, 0.4], quality_lines=[1.5])
+
+
+def test_state_flashes_by_name():
+    """PH flash of water across its dome at 1 atm (IAPWS R6-95(2018); the normal boiling point
+    of IAPWS-95, 373.124 K, from memory), and round trips of a two-phase mixture."""
+    water = tl.Model.water()
+    r = tl.flash_ph(water, 101325.0, -255000.0, [1.0])
+    assert r.temperature == pytest.approx(373.124, abs=1e-3) and r.num_phases == 2
+    assert r.d_temperature_d_enthalpy is None and "derivatives_error" in r
+    h = np.linspace(-280000.0, -240000.0, 9)
+    s = tl.flash_ph(water, 101325.0, h, [1.0])
+    np.testing.assert_allclose(s.enthalpy, h, rtol=1e-9)
+    assert (np.diff(s.temperature) >= 0).all()
+    with pytest.raises(tl.OutsideValidityError, match="1273.15"):
+        tl.flash_ph(water, 101325.0, 1.0e6, [1.0])
+    gas = tl.Model(["methane", "propane"])
+    pt = tl.calculate("flash_pt", gas, 250.0, 2.0e6, feed=[0.6, 0.4], tolerance=1e-12)
+    for r in (
+        tl.flash_ph(gas, 2.0e6, pt.enthalpy, [0.6, 0.4]),
+        tl.flash_ps(gas, 2.0e6, pt.entropy, [0.6, 0.4]),
+        tl.flash_tv(gas, 250.0, pt.molar_volume, [0.6, 0.4]),
+        tl.flash_uv(gas, pt.internal_energy, pt.molar_volume, [0.6, 0.4]),
+    ):
+        assert r.temperature == pytest.approx(250.0, rel=1e-9)
+        assert r.pressure == pytest.approx(2.0e6, rel=1e-8)
+    r = tl.flash_ph(gas, 2.0e6, pt.enthalpy, [0.6, 0.4])
+    assert r.d_temperature_d_enthalpy == pytest.approx(1.0 / tl.flash_sensitivities(gas, 250.0, 2.0e6, [0.6, 0.4]).cp_equilibrium, rel=1e-6)

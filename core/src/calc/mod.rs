@@ -28,7 +28,8 @@ pub use record::{Column, ColumnData, Columns, Field, Record, Value};
 
 use crate::equilibrium::{
     CriticalOptions, EnvelopeOptions, EnvelopePoint, FlashContext, FlashOptions, FlashResult, FlashSensitivities,
-    PhaseEnvelope, SensitivityWork, critical_point, phase_envelope,
+    PhaseEnvelope, SensitivityWork, StateFlashContext, StateFlashOptions, StateFlashResult, StateSpec, critical_point,
+    phase_envelope,
 };
 use crate::error::{Error, Result};
 use crate::model::{FluidModel, Model};
@@ -89,6 +90,8 @@ pub enum Options {
     Envelope(EnvelopeOptions),
     /// Critical-point options.
     Critical(CriticalOptions),
+    /// State-function flash options.
+    State(StateFlashOptions),
 }
 
 /// Reusable solver state for running calculations one after another on one thread: warm
@@ -99,12 +102,14 @@ pub struct Workspace {
     flash: FlashContext,
     sensitivity: SensitivityWork,
     derivatives: FlashSensitivities,
+    state: StateFlashContext,
 }
 
 impl Workspace {
     /// Forgets every previous solution, so the next call starts cold.
     pub fn reset(&mut self) {
         self.flash.reset();
+        self.state.reset();
     }
 }
 
@@ -267,6 +272,143 @@ const P_ARG: Argument = Argument {
     unit: "Pa",
     doc: "pressure",
 };
+const H_ARG: Argument = Argument {
+    name: "enthalpy",
+    unit: "J/mol",
+    doc: "molar enthalpy of the feed (the library's reference state: elements at 298.15 K, 1e5 Pa)",
+};
+const S_ARG: Argument = Argument {
+    name: "entropy",
+    unit: "J/(mol K)",
+    doc: "molar entropy of the feed",
+};
+const V_ARG: Argument = Argument {
+    name: "volume",
+    unit: "m3/mol",
+    doc: "volume per mol of feed",
+};
+const U_ARG: Argument = Argument {
+    name: "internal_energy",
+    unit: "J/mol",
+    doc: "molar internal energy of the feed",
+};
+
+/// A state-function flash from the arguments of its calculation.
+fn state_flash(
+    name: &'static str,
+    o: &Options,
+    ws: &mut Workspace,
+    m: &Model,
+    a: &[f64],
+    feed: &[f64],
+) -> Result<Record> {
+    let Options::State(o) = o else {
+        return Err(wrong_options("state-function flash"));
+    };
+    let spec = match name {
+        "flash_ph" => StateSpec::PressureEnthalpy {
+            pressure: a[0],
+            enthalpy: a[1],
+        },
+        "flash_ps" => StateSpec::PressureEntropy {
+            pressure: a[0],
+            entropy: a[1],
+        },
+        "flash_tv" => StateSpec::TemperatureVolume {
+            temperature: a[0],
+            volume: a[1],
+        },
+        _ => StateSpec::EnergyVolume {
+            internal_energy: a[0],
+            volume: a[1],
+        },
+    };
+    let r = ws.state.flash(m, &spec, feed, o)?;
+    let mut rec = Record::new(name);
+    flash_fields(&mut rec, m, &r.flash);
+    rec.count("outer_iterations", r.iterations)
+        .count("pt_flashes", r.pt_flashes)
+        .number("spec_residual", "1", r.residual);
+    state_derivative_fields(&mut rec, &spec, m, r, &mut ws.sensitivity, &mut ws.derivatives);
+    Ok(rec)
+}
+
+/// The derivatives of the solved state (T, p) with respect to the two specified quantities,
+/// from the sensitivities of the converged flash: the inverse of the Jacobian of the
+/// specified pair with respect to (T, p). Absent (with `derivatives_error`) where the
+/// equilibrium has no derivatives (a pure substance split between two phases, a critical
+/// point).
+fn state_derivative_fields(
+    rec: &mut Record,
+    spec: &StateSpec,
+    m: &Model,
+    r: &StateFlashResult,
+    work: &mut SensitivityWork,
+    s: &mut FlashSensitivities,
+) {
+    let names: [(&'static str, &'static str); 4] = match spec {
+        StateSpec::PressureEnthalpy { .. } => [
+            ("d_temperature_d_pressure", "K/Pa"),
+            ("d_temperature_d_enthalpy", "K mol/J"),
+            ("", ""),
+            ("", ""),
+        ],
+        StateSpec::PressureEntropy { .. } => [
+            ("d_temperature_d_pressure", "K/Pa"),
+            ("d_temperature_d_entropy", "K2 mol/J"),
+            ("", ""),
+            ("", ""),
+        ],
+        StateSpec::TemperatureVolume { .. } => [
+            ("", ""),
+            ("", ""),
+            ("d_pressure_d_temperature", "Pa/K"),
+            ("d_pressure_d_volume", "Pa mol/m3"),
+        ],
+        StateSpec::EnergyVolume { .. } => [
+            ("d_temperature_d_internal_energy", "K mol/J"),
+            ("d_temperature_d_volume", "K mol/m3"),
+            ("d_pressure_d_internal_energy", "Pa mol/J"),
+            ("d_pressure_d_volume", "Pa mol/m3"),
+        ],
+    };
+    let jac = work.compute(m, &r.flash, s).map(|_| {
+        // Per mol of feed: rows (spec1, spec2), columns (T, p).
+        let n = s.total_amount;
+        let (t, p) = (&s.temperature, &s.pressure);
+        let pr = r.flash.pressure;
+        let v = s.total_volume;
+        match spec {
+            StateSpec::PressureEnthalpy { .. } => [[0.0, 1.0], [t.enthalpy / n, p.enthalpy / n]],
+            StateSpec::PressureEntropy { .. } => [[0.0, 1.0], [t.entropy / n, p.entropy / n]],
+            StateSpec::TemperatureVolume { .. } => [[1.0, 0.0], [t.volume / n, p.volume / n]],
+            StateSpec::EnergyVolume { .. } => [
+                [(t.enthalpy - pr * t.volume) / n, (p.enthalpy - pr * p.volume - v) / n],
+                [t.volume / n, p.volume / n],
+            ],
+        }
+    });
+    // Inverse of [[a, b], [c, d]] (d(spec)/d(T, p)) gives d(T, p)/d(spec).
+    let inv = jac.and_then(|[[a, b], [c, d]]| {
+        let det = a * d - b * c;
+        if det.is_finite() && det != 0.0 {
+            Ok([[d / det, -b / det], [-c / det, a / det]])
+        } else {
+            Err(Error::NoSolution(
+                "the specification does not determine T and p locally".into(),
+            ))
+        }
+    });
+    let values = inv.as_ref().ok().map(|m| [m[0][0], m[0][1], m[1][0], m[1][1]]);
+    for (k, (name, unit)) in names.iter().enumerate() {
+        if !name.is_empty() {
+            rec.maybe(name, unit, values.map(|v| v[k]));
+        }
+    }
+    if let Err(e) = inv {
+        rec.text("derivatives_error", e.to_string());
+    }
+}
 
 /// Every calculation the bindings expose.
 pub static CALCULATIONS: &[Calculation] = &[
@@ -300,6 +442,38 @@ pub static CALCULATIONS: &[Calculation] = &[
             sensitivity_fields(&mut rec, &ws.derivatives);
             Ok(rec)
         },
+    },
+    Calculation {
+        name: "flash_ph",
+        summary: "the equilibrium state at given pressure and molar enthalpy (a valve, a heat exchanger)",
+        arguments: &[P_ARG, H_ARG],
+        defaults: defaults_of::<StateFlashOptions>,
+        parse: |v| Ok(Options::State(parse_as(v)?)),
+        run: |o, ws, m, a, feed| state_flash("flash_ph", o, ws, m, a, feed),
+    },
+    Calculation {
+        name: "flash_ps",
+        summary: "the equilibrium state at given pressure and molar entropy (an isentropic compressor or expander)",
+        arguments: &[P_ARG, S_ARG],
+        defaults: defaults_of::<StateFlashOptions>,
+        parse: |v| Ok(Options::State(parse_as(v)?)),
+        run: |o, ws, m, a, feed| state_flash("flash_ps", o, ws, m, a, feed),
+    },
+    Calculation {
+        name: "flash_tv",
+        summary: "the equilibrium state at given temperature and volume per mol of feed (a vessel at known T)",
+        arguments: &[T_ARG, V_ARG],
+        defaults: defaults_of::<StateFlashOptions>,
+        parse: |v| Ok(Options::State(parse_as(v)?)),
+        run: |o, ws, m, a, feed| state_flash("flash_tv", o, ws, m, a, feed),
+    },
+    Calculation {
+        name: "flash_uv",
+        summary: "the equilibrium state at given molar internal energy and volume (a closed, rigid vessel)",
+        arguments: &[U_ARG, V_ARG],
+        defaults: defaults_of::<StateFlashOptions>,
+        parse: |v| Ok(Options::State(parse_as(v)?)),
+        run: |o, ws, m, a, feed| state_flash("flash_uv", o, ws, m, a, feed),
     },
     Calculation {
         name: "phase_envelope",

@@ -43,7 +43,7 @@ from ._api import (
 )
 from ._pure import PureSubstance
 from ._calc import Record, Sweep, calculate, calculations, describe
-from ._named import critical_point, flash_sensitivities, phase_envelope
+from ._named import critical_point, flash_ph, flash_ps, flash_sensitivities, flash_tv, flash_uv, phase_envelope
 from ._errors import (
     ConvergenceError,
     DataError,
@@ -94,6 +94,10 @@ __all__ = [
     "Solid",
     "PureSubstance",
     "calculate",
+    "flash_ph",
+    "flash_ps",
+    "flash_tv",
+    "flash_uv",
     "flash_sensitivities",
     "phase_envelope",
     "critical_point",

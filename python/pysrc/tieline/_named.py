@@ -13,7 +13,7 @@ from typing import Any, Optional
 from ._calc import calculate
 from ._core import Model
 
-__all__ = ["flash_sensitivities", "phase_envelope", "critical_point"]
+__all__ = ["flash_ph", "flash_ps", "flash_tv", "flash_uv", "flash_sensitivities", "phase_envelope", "critical_point"]
 
 
 def flash_sensitivities(
@@ -71,3 +71,76 @@ def critical_point(
     ``iterations``. Options: ``tolerance``, ``max_iterations``, ``initial_temperature``,
     ``initial_volume``."""
     return calculate("critical_point", model, feed=feed, threads=threads, on_error=on_error, **options)
+
+
+_STATE_DOC = """{title}
+
+Parameters
+----------
+model : Model
+    The fluid model (cubic equations of state, or IAPWS-95 water).
+{a} : float or array_like
+    {a_doc}
+{b} : float or array_like
+    {b_doc}
+feed : array_like
+    Feed amounts, mol (one row, or rows broadcast with the other inputs).
+block, threads, progress, on_error
+    Vectorised calls: points per warm-started block (each point starts from the previous
+    one's solution), thread count, a ``progress(done, total)`` callback, and ``"raise"`` or
+    ``"flag"`` for failed points.
+**options
+    ``tolerance`` (relative, on the specification; default 1e-10), ``max_iterations``,
+    ``temperature_range`` and ``pressure_range`` (search ranges, K and Pa), and ``flash``
+    (a dict of PT-flash options).
+
+Returns
+-------
+Record or Sweep
+    The fields of a PT flash at the solution (``temperature``, ``pressure``, phases,
+    compositions, ``enthalpy`` ...), with ``outer_iterations``, ``pt_flashes``,
+    ``spec_residual``, and the derivatives of the solution with respect to the
+    specification ({derivs}; absent, with ``derivatives_error``, where the equilibrium has
+    none, as for a pure substance inside its two-phase dome).
+
+A specification outside what the model's range allows is an :class:`OutsideValidityError`
+or :class:`NoSolutionError` naming the reachable bound.
+"""
+
+
+def _state(name: str, model: Model, a: Any, b: Any, feed: Any, kw: Any) -> Any:
+    return calculate(name, model, a, b, feed=feed, **kw)
+
+
+def flash_ph(model: Model, pressure: Any, enthalpy: Any, feed: Any, **kw: Any) -> Any:
+    return _state("flash_ph", model, pressure, enthalpy, feed, kw)
+
+
+def flash_ps(model: Model, pressure: Any, entropy: Any, feed: Any, **kw: Any) -> Any:
+    return _state("flash_ps", model, pressure, entropy, feed, kw)
+
+
+def flash_tv(model: Model, temperature: Any, volume: Any, feed: Any, **kw: Any) -> Any:
+    return _state("flash_tv", model, temperature, volume, feed, kw)
+
+
+def flash_uv(model: Model, internal_energy: Any, volume: Any, feed: Any, **kw: Any) -> Any:
+    return _state("flash_uv", model, internal_energy, volume, feed, kw)
+
+
+flash_ph.__doc__ = _STATE_DOC.format(
+    title="PH flash: the equilibrium state at given pressure and molar enthalpy (a valve, a heater).",
+    a="pressure", a_doc="Pressure(s), Pa.", b="enthalpy", b_doc="Molar enthalpy of the feed, J/mol.",
+    derivs="``d_temperature_d_pressure`` (K/Pa), ``d_temperature_d_enthalpy`` (K mol/J)")
+flash_ps.__doc__ = _STATE_DOC.format(
+    title="PS flash: the equilibrium state at given pressure and molar entropy (an isentropic machine).",
+    a="pressure", a_doc="Pressure(s), Pa.", b="entropy", b_doc="Molar entropy of the feed, J/(mol K).",
+    derivs="``d_temperature_d_pressure``, ``d_temperature_d_entropy``")
+flash_tv.__doc__ = _STATE_DOC.format(
+    title="TV flash: the equilibrium state at given temperature and volume per mol of feed.",
+    a="temperature", a_doc="Temperature(s), K.", b="volume", b_doc="Volume per mol of feed, m3/mol.",
+    derivs="``d_pressure_d_temperature`` (Pa/K), ``d_pressure_d_volume`` (Pa mol/m3)")
+flash_uv.__doc__ = _STATE_DOC.format(
+    title="UV flash: the equilibrium state of a closed rigid vessel (internal energy and volume per mol).",
+    a="internal_energy", a_doc="Molar internal energy, J/mol.", b="volume", b_doc="Volume per mol of feed, m3/mol.",
+    derivs="``d_temperature_d_internal_energy``, ``d_temperature_d_volume``, ``d_pressure_d_*``")

@@ -11,6 +11,7 @@ pub mod flash;
 pub(crate) mod multiphase;
 pub mod pure;
 pub mod rachford_rice;
+pub mod reaction;
 pub mod saturation;
 pub mod solid_flash;
 pub mod stability;

@@ -13,6 +13,7 @@ pub mod flash;
 pub(crate) mod multiphase;
 pub mod pure;
 pub mod rachford_rice;
+pub mod reaction;
 pub mod saturation;
 pub mod sensitivity;
 pub mod solid_flash;

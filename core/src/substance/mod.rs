@@ -10,10 +10,12 @@
 
 mod bank;
 pub(crate) mod ideal_gas;
+pub mod species;
 pub use ideal_gas::IdealGasSpecies;
 
 pub use bank::{DataBank, Reference};
 pub use ideal_gas::{CpCorrelation, CpForm};
+pub use species::{CpRange, Species, SpeciesBank, SpeciesPhase, StandardState};
 
 use crate::error::{Error, Result};
 use serde::{Deserialize, Serialize};

@@ -1455,6 +1455,63 @@ tl_status tl_flash_uv(const struct tl_model *model,
                       struct tl_record *record);
 
 /**
+ * Chemical equilibrium at given temperature and pressure: `temperature` (K), `pressure` (Pa). The species are
+ * the model's components followed by the option `extra_species` (e.g. `{"extra_species":
+ * ["OH", "NO", "graphite"]}`); `feed` holds `n` amounts in that order (mol). Ideal gas
+ * unless the option `real_gas` is true. Fields: `temperature`, `pressure`, `species`,
+ * `amounts`, `gas_mole_fractions`, `condensed`, `elements`, `element_potentials` (J/mol),
+ * `enthalpy` (J), `entropy` (J/K), `certificate` ... An element-infeasible feed, an unknown
+ * species, T outside a cp range or a specification with no solution in range are typed
+ * errors. Equilibrium is a limit, not a prediction of kinetics.
+ */
+tl_status tl_reaction_tp(const struct tl_model *model,
+                         double temperature,
+                         double pressure,
+                         const double *feed,
+                         size_t n,
+                         const char *options_json,
+                         struct tl_workspace *workspace,
+                         struct tl_record *record);
+
+/**
+ * Chemical equilibrium at given pressure and total enthalpy (the adiabatic flame): `pressure` (Pa), `enthalpy` (J, total). The species are
+ * the model's components followed by the option `extra_species` (e.g. `{"extra_species":
+ * ["OH", "NO", "graphite"]}`); `feed` holds `n` amounts in that order (mol). Ideal gas
+ * unless the option `real_gas` is true. Fields: `temperature`, `pressure`, `species`,
+ * `amounts`, `gas_mole_fractions`, `condensed`, `elements`, `element_potentials` (J/mol),
+ * `enthalpy` (J), `entropy` (J/K), `certificate` ... An element-infeasible feed, an unknown
+ * species, T outside a cp range or a specification with no solution in range are typed
+ * errors. Equilibrium is a limit, not a prediction of kinetics.
+ */
+tl_status tl_reaction_hp(const struct tl_model *model,
+                         double pressure,
+                         double enthalpy,
+                         const double *feed,
+                         size_t n,
+                         const char *options_json,
+                         struct tl_workspace *workspace,
+                         struct tl_record *record);
+
+/**
+ * Chemical equilibrium at given pressure and total entropy (isentropic expansion): `pressure` (Pa), `entropy` (J/K, total). The species are
+ * the model's components followed by the option `extra_species` (e.g. `{"extra_species":
+ * ["OH", "NO", "graphite"]}`); `feed` holds `n` amounts in that order (mol). Ideal gas
+ * unless the option `real_gas` is true. Fields: `temperature`, `pressure`, `species`,
+ * `amounts`, `gas_mole_fractions`, `condensed`, `elements`, `element_potentials` (J/mol),
+ * `enthalpy` (J), `entropy` (J/K), `certificate` ... An element-infeasible feed, an unknown
+ * species, T outside a cp range or a specification with no solution in range are typed
+ * errors. Equilibrium is a limit, not a prediction of kinetics.
+ */
+tl_status tl_reaction_sp(const struct tl_model *model,
+                         double pressure,
+                         double entropy,
+                         const double *feed,
+                         size_t n,
+                         const char *options_json,
+                         struct tl_workspace *workspace,
+                         struct tl_record *record);
+
+/**
  * Ice Ih by the IAPWS-06 Gibbs function (IAPWS R10-06(2009)), species "water"; evaluated
  * for 0 < T ≤ 273.16 K and p ≤ 210 MPa. Its reference state is consistent
  * with the IAPWS-95 water model (`{"model": "iapws95"}`). On success `*out` receives a new

@@ -104,7 +104,8 @@ pub unsafe extern "C" fn tl_calculation_describe(
             .map(|a| serde_json::json!({"name": a.name, "unit": a.unit, "doc": a.doc}))
             .collect();
         let text = serde_json::json!({
-            "name": c.name, "summary": c.summary, "arguments": args, "options": c.default_options()
+            "name": c.name, "summary": c.summary, "arguments": args, "options": c.default_options(),
+            "feed_extension": c.feed_extension
         })
         .to_string();
         // SAFETY: caller contract.

@@ -259,3 +259,111 @@ pub unsafe extern "C" fn tl_flash_uv(
         }
     })
 }
+
+/// Chemical equilibrium at given temperature and pressure: `temperature` (K), `pressure` (Pa). The species are
+/// the model's components followed by the option `extra_species` (e.g. `{"extra_species":
+/// ["OH", "NO", "graphite"]}`); `feed` holds `n` amounts in that order (mol). Ideal gas
+/// unless the option `real_gas` is true. Fields: `temperature`, `pressure`, `species`,
+/// `amounts`, `gas_mole_fractions`, `condensed`, `elements`, `element_potentials` (J/mol),
+/// `enthalpy` (J), `entropy` (J/K), `certificate` ... An element-infeasible feed, an unknown
+/// species, T outside a cp range or a specification with no solution in range are typed
+/// errors. Equilibrium is a limit, not a prediction of kinetics.
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_reaction_tp(
+    model: *const tl_model,
+    temperature: f64,
+    pressure: f64,
+    feed: *const f64,
+    n: usize,
+    options_json: *const c_char,
+    workspace: *mut tl_workspace,
+    record: *mut tl_record,
+) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        unsafe {
+            named(
+                "reaction_tp",
+                options_json,
+                workspace,
+                model,
+                &[temperature, pressure],
+                feed,
+                n,
+                record,
+            )
+        }
+    })
+}
+
+/// Chemical equilibrium at given pressure and total enthalpy (the adiabatic flame): `pressure` (Pa), `enthalpy` (J, total). The species are
+/// the model's components followed by the option `extra_species` (e.g. `{"extra_species":
+/// ["OH", "NO", "graphite"]}`); `feed` holds `n` amounts in that order (mol). Ideal gas
+/// unless the option `real_gas` is true. Fields: `temperature`, `pressure`, `species`,
+/// `amounts`, `gas_mole_fractions`, `condensed`, `elements`, `element_potentials` (J/mol),
+/// `enthalpy` (J), `entropy` (J/K), `certificate` ... An element-infeasible feed, an unknown
+/// species, T outside a cp range or a specification with no solution in range are typed
+/// errors. Equilibrium is a limit, not a prediction of kinetics.
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_reaction_hp(
+    model: *const tl_model,
+    pressure: f64,
+    enthalpy: f64,
+    feed: *const f64,
+    n: usize,
+    options_json: *const c_char,
+    workspace: *mut tl_workspace,
+    record: *mut tl_record,
+) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        unsafe {
+            named(
+                "reaction_hp",
+                options_json,
+                workspace,
+                model,
+                &[pressure, enthalpy],
+                feed,
+                n,
+                record,
+            )
+        }
+    })
+}
+
+/// Chemical equilibrium at given pressure and total entropy (isentropic expansion): `pressure` (Pa), `entropy` (J/K, total). The species are
+/// the model's components followed by the option `extra_species` (e.g. `{"extra_species":
+/// ["OH", "NO", "graphite"]}`); `feed` holds `n` amounts in that order (mol). Ideal gas
+/// unless the option `real_gas` is true. Fields: `temperature`, `pressure`, `species`,
+/// `amounts`, `gas_mole_fractions`, `condensed`, `elements`, `element_potentials` (J/mol),
+/// `enthalpy` (J), `entropy` (J/K), `certificate` ... An element-infeasible feed, an unknown
+/// species, T outside a cp range or a specification with no solution in range are typed
+/// errors. Equilibrium is a limit, not a prediction of kinetics.
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_reaction_sp(
+    model: *const tl_model,
+    pressure: f64,
+    entropy: f64,
+    feed: *const f64,
+    n: usize,
+    options_json: *const c_char,
+    workspace: *mut tl_workspace,
+    record: *mut tl_record,
+) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        unsafe {
+            named(
+                "reaction_sp",
+                options_json,
+                workspace,
+                model,
+                &[pressure, entropy],
+                feed,
+                n,
+                record,
+            )
+        }
+    })
+}

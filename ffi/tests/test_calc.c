@@ -211,6 +211,28 @@ int main(void) {
     tl_model_free(water);
   }
 
+  /* Chemical equilibrium: the water-gas shift at 1000 K satisfies K from NIST-JANAF 4th ed.
+   * (Chase 1998) formation Gibbs energies (from memory): K = 1.438 within the data's 0.2 %. */
+  {
+    const char *wgs[] = {"carbon monoxide", "water", "carbon dioxide", "hydrogen"};
+    const tl_model *gas = NULL;
+    OK(tl_model_new(wgs, 4, TL_CUBIC_PENG_ROBINSON, &gas));
+    const double n0[4] = {1.0, 1.0, 0.0, 0.0};
+    OK(tl_reaction_tp(gas, 1000.0, 1.0e5, n0, 4, NULL, ws, rec));
+    double n[4];
+    OK(tl_record_numbers(rec, "amounts", n, 4, &needed, NULL, NULL));
+    const double k = n[2] * n[3] / (n[0] * n[1]);
+    CHECK(fabs(k / 1.438 - 1.0) < 2e-3, "water-gas shift constant at 1000 K");
+    const double bad[4] = {1.0, -1.0, 0.0, 0.0};
+    CHECK(tl_reaction_tp(gas, 1000.0, 1.0e5, bad, 4, NULL, ws, rec) == TL_STATUS_INVALID_INPUT, "negative amount");
+    CHECK(tl_reaction_tp(gas, 1000.0, 1.0e5, n0, 5, "{\"extra_species\": [\"unobtainium\"]}", ws, rec) ==
+              TL_STATUS_UNKNOWN_COMPONENT,
+          "unknown species");
+    CHECK(tl_reaction_tp(gas, 1.0e5, 1.0e5, n0, 4, NULL, ws, rec) == TL_STATUS_OUTSIDE_VALIDITY,
+          "a temperature outside the cp ranges");
+    tl_model_free(gas);
+  }
+
   tl_result_free(res);
   tl_record_free(rec);
   tl_workspace_free(ws);

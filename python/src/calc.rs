@@ -10,7 +10,7 @@ use numpy::{IntoPyArray, PyReadonlyArray1, PyReadonlyArray2, PyUntypedArrayMetho
 use pyo3::prelude::*;
 use pyo3::types::{PyDict, PyList, PyTuple};
 use tieline::calc::{ColumnData, Columns, Plan, Record, Value, Workspace};
-use tieline::model::{FluidModel, Model};
+use tieline::model::Model;
 
 /// A calculation's result: named fields with SI units, read as attributes (numbers as float
 /// or int, vectors and tables as numpy arrays, words as str, absent values as None).
@@ -148,6 +148,7 @@ pub fn describe_calculation<'py>(py: Python<'py>, name: &str) -> PyResult<Bound<
     let args: Vec<(&str, &str, &str)> = c.arguments.iter().map(|a| (a.name, a.unit, a.doc)).collect();
     d.set_item("arguments", args)?;
     d.set_item("options", crate::records::value_to_py(py, &c.default_options(), false)?)?;
+    d.set_item("feed_extension", c.feed_extension)?;
     Ok(d)
 }
 
@@ -202,7 +203,8 @@ pub fn calc_sweep<'py>(
 ) -> PyResult<Bound<'py, PyDict>> {
     let plan = plan(py, name, options_json)?;
     let m: &Model = &model.inner;
-    let nc = m.num_components();
+    // The feed's width: the model's components, plus the species an option adds.
+    let nc = amounts.shape()[1];
     let cols: Vec<&[f64]> = args
         .iter()
         .zip(plan.calculation().arguments)

@@ -168,3 +168,26 @@ def test_state_flashes_by_name():
         assert r.pressure == pytest.approx(2.0e6, rel=1e-8)
     r = tl.flash_ph(gas, 2.0e6, pt.enthalpy, [0.6, 0.4])
     assert r.d_temperature_d_enthalpy == pytest.approx(1.0 / tl.flash_sensitivities(gas, 250.0, 2.0e6, [0.6, 0.4]).cp_equilibrium, rel=1e-6)
+
+
+def test_reaction_equilibrium_by_name():
+    """Water-gas shift at 1000 K against K from NIST-JANAF 4th ed. (Chase 1998) formation Gibbs
+    energies, from memory (K = 1.438); a stoichiometric methane-air flame against Turns, An
+    Introduction to Combustion, 2nd ed., Table B.1 (2226 K, from memory), within 5 K."""
+    wgs = tl.Model(["carbon monoxide", "water", "carbon dioxide", "hydrogen"])
+    r = tl.reaction_tp(wgs, 1000.0, 1.0e5, [1.0, 1.0, 0.0, 0.0])
+    n = r.amounts
+    assert n[2] * n[3] / (n[0] * n[1]) == pytest.approx(1.438, rel=2e-3)
+    assert r.elements == ["C", "H", "O"] and r.certificate is None or r.certificate >= -1e-9
+    t = np.linspace(600.0, 1400.0, 9)
+    s = tl.reaction_tp(wgs, t, 1.0e5, [1.0, 1.0, 0.0, 0.0])
+    assert s.amounts.shape == (9, 4) and (np.diff(s.amounts[:, 2]) < 0).all()  # exothermic: less CO2 hot
+    assert pickle.loads(pickle.dumps(r)) == r
+    air = tl.Model(["methane", "oxygen", "nitrogen", "water", "carbon dioxide", "carbon monoxide", "hydrogen"])
+    extra = ["OH", "H", "O", "NO"]
+    f = tl.reaction_hp(air, 101325.0, -74873.0, [1.0, 2.0, 7.52, 0, 0, 0, 0, 0, 0, 0, 0], extra_species=extra)
+    assert f.temperature == pytest.approx(2226.0, abs=5.0)
+    with pytest.raises(tl.InvalidInputError, match="extra_species"):
+        tl.reaction_hp(air, 101325.0, -74873.0, [1.0, 2.0, 7.52, 0, 0, 0, 0], extra_species=extra)
+    with pytest.raises(tl.UnknownComponentError):
+        tl.reaction_tp(wgs, 1000.0, 1.0e5, [1.0, 1.0, 0.0, 0.0, 0.0], extra_species=["unobtainium"])

@@ -26,6 +26,7 @@ mod record;
 
 pub use record::{Column, ColumnData, Columns, Field, Record, Value};
 
+use crate::equilibrium::reaction::{ReactionContext, ReactionOptions, ReactionResult, ReactionSystem};
 use crate::equilibrium::{
     CriticalOptions, EnvelopeOptions, EnvelopePoint, FlashContext, FlashOptions, FlashResult, FlashSensitivities,
     PhaseEnvelope, SensitivityWork, StateFlashContext, StateFlashOptions, StateFlashResult, StateSpec, critical_point,
@@ -56,6 +57,9 @@ pub struct Calculation {
     pub summary: &'static str,
     /// The scalar arguments, in call order; the feed amounts (mol, one per component) follow.
     pub arguments: &'static [Argument],
+    /// The option (a list of names) whose entries extend the feed beyond the model's
+    /// components, if any: the feed then holds nc + its length amounts.
+    pub feed_extension: Option<&'static str>,
     defaults: fn() -> Json,
     parse: fn(&Json) -> Result<Options>,
     run: RunFn,
@@ -92,6 +96,25 @@ pub enum Options {
     Critical(CriticalOptions),
     /// State-function flash options.
     State(StateFlashOptions),
+    /// Reaction-equilibrium options.
+    Reaction(ReactionCalcOptions),
+}
+
+/// Options of the reaction-equilibrium calculations: the species besides the model's
+/// components, the gas model, and the minimiser's options.
+#[derive(Debug, Clone, PartialEq, Default, Serialize, serde::Deserialize)]
+#[serde(default)]
+pub struct ReactionCalcOptions {
+    /// Species that may form besides the model's components (names or aliases in the species
+    /// data, e.g. "OH", "NO", "graphite", "liquid water"). The feed lists the model's
+    /// components first, then these, in order (mol).
+    pub extra_species: Vec<String>,
+    /// Fugacity coefficients of the gas from the model (a real gas; the extra species must
+    /// then all be condensed) rather than an ideal gas.
+    pub real_gas: bool,
+    /// Options of the minimiser.
+    #[serde(flatten)]
+    pub solver: ReactionOptions,
 }
 
 /// Reusable solver state for running calculations one after another on one thread: warm
@@ -103,6 +126,9 @@ pub struct Workspace {
     sensitivity: SensitivityWork,
     derivatives: FlashSensitivities,
     state: StateFlashContext,
+    /// The reaction system of the last reaction calculation, keyed by its species, and its
+    /// warm-start context.
+    reaction: Option<(Vec<String>, ReactionSystem, ReactionContext)>,
 }
 
 impl Workspace {
@@ -110,6 +136,9 @@ impl Workspace {
     pub fn reset(&mut self) {
         self.flash.reset();
         self.state.reset();
+        if let Some((_, _, c)) = &mut self.reaction {
+            c.reset();
+        }
     }
 }
 
@@ -293,6 +322,62 @@ const U_ARG: Argument = Argument {
     doc: "molar internal energy of the feed",
 };
 
+/// A reaction equilibrium (TP, HP or SP) from the arguments of its calculation.
+fn reaction(name: &'static str, o: &Options, ws: &mut Workspace, m: &Model, a: &[f64], feed: &[f64]) -> Result<Record> {
+    let Options::Reaction(o) = o else {
+        return Err(wrong_options("reaction-equilibrium"));
+    };
+    let nc = m.num_components();
+    let mut names: Vec<String> = (0..nc).map(|i| m.component_name(i).to_string()).collect();
+    names.extend(o.extra_species.iter().cloned());
+    let fresh = !matches!(&ws.reaction, Some((key, _, _)) if *key == names);
+    if fresh {
+        let sys = ReactionSystem::from_names(&names)?;
+        let ctx = ReactionContext::new(&sys);
+        ws.reaction = Some((names.clone(), sys, ctx));
+    }
+    let Some((_, sys, ctx)) = &mut ws.reaction else {
+        return Err(Error::invalid("species", "no reaction system"));
+    };
+    let gas: Option<&dyn FluidModel> = if o.real_gas { Some(m) } else { None };
+    let r = match name {
+        "reaction_tp" => ctx.equilibrate_tp(sys, gas, a[0], a[1], feed, &o.solver)?,
+        "reaction_hp" => ctx.equilibrate_hp(sys, gas, a[0], a[1], feed, &o.solver)?,
+        _ => ctx.equilibrate_sp(sys, gas, a[0], a[1], feed, &o.solver)?,
+    };
+    let mut rec = Record::new(name);
+    reaction_fields(&mut rec, sys, &r);
+    Ok(rec)
+}
+
+/// The fields of a reaction equilibrium.
+fn reaction_fields(rec: &mut Record, sys: &ReactionSystem, r: &ReactionResult) {
+    let c = &r.certificate;
+    rec.number("temperature", "K", r.temperature)
+        .number("pressure", "Pa", r.pressure)
+        .texts("species", sys.species().iter().map(|s| s.name.clone()).collect())
+        .numbers("amounts", "mol", r.amounts.clone())
+        .numbers("gas_mole_fractions", "1", r.mole_fractions.clone())
+        .number("gas_amount", "mol", r.gas_amount)
+        .texts("condensed", r.condensed.clone())
+        .texts("elements", sys.elements().to_vec())
+        .numbers("element_potentials", "J/mol", r.element_potentials.clone())
+        .number("enthalpy", "J", r.enthalpy)
+        .number("entropy", "J/K", r.entropy)
+        .number("gibbs_energy", "J", r.gibbs)
+        .number("cp_equilibrium", "J/K", r.cp_equilibrium)
+        .number("cp_frozen", "J/K", r.cp_frozen)
+        .number("volume", "m3", r.volume)
+        .count("iterations", r.iterations)
+        .count("temperature_iterations", r.temperature_iterations)
+        .maybe("certificate", "1", c.min_absent)
+        .number("element_residual", "1", c.element_residual)
+        .texts(
+            "excluded_species",
+            c.excluded.iter().map(|e| format!("{}: {}", e.name, e.reason)).collect(),
+        );
+}
+
 /// A state-function flash from the arguments of its calculation.
 fn state_flash(
     name: &'static str,
@@ -416,6 +501,7 @@ pub static CALCULATIONS: &[Calculation] = &[
         name: "flash_pt",
         summary: "phases of least Gibbs energy at given temperature, pressure and feed (PT flash)",
         arguments: &[T_ARG, P_ARG],
+        feed_extension: None,
         defaults: defaults_of::<FlashOptions>,
         parse: |v| Ok(Options::Flash(parse_as(v)?)),
         run: |o, ws, m, a, feed| {
@@ -431,6 +517,7 @@ pub static CALCULATIONS: &[Calculation] = &[
         summary: "a PT flash and the derivatives of its phase amounts, compositions and mixture V, H, S \
                   with respect to T, p and the feed amounts (implicit function theorem)",
         arguments: &[T_ARG, P_ARG],
+        feed_extension: None,
         defaults: defaults_of::<FlashOptions>,
         parse: |v| Ok(Options::Flash(parse_as(v)?)),
         run: |o, ws, m, a, feed| {
@@ -447,6 +534,7 @@ pub static CALCULATIONS: &[Calculation] = &[
         name: "flash_ph",
         summary: "the equilibrium state at given pressure and molar enthalpy (a valve, a heat exchanger)",
         arguments: &[P_ARG, H_ARG],
+        feed_extension: None,
         defaults: defaults_of::<StateFlashOptions>,
         parse: |v| Ok(Options::State(parse_as(v)?)),
         run: |o, ws, m, a, feed| state_flash("flash_ph", o, ws, m, a, feed),
@@ -455,6 +543,7 @@ pub static CALCULATIONS: &[Calculation] = &[
         name: "flash_ps",
         summary: "the equilibrium state at given pressure and molar entropy (an isentropic compressor or expander)",
         arguments: &[P_ARG, S_ARG],
+        feed_extension: None,
         defaults: defaults_of::<StateFlashOptions>,
         parse: |v| Ok(Options::State(parse_as(v)?)),
         run: |o, ws, m, a, feed| state_flash("flash_ps", o, ws, m, a, feed),
@@ -463,6 +552,7 @@ pub static CALCULATIONS: &[Calculation] = &[
         name: "flash_tv",
         summary: "the equilibrium state at given temperature and volume per mol of feed (a vessel at known T)",
         arguments: &[T_ARG, V_ARG],
+        feed_extension: None,
         defaults: defaults_of::<StateFlashOptions>,
         parse: |v| Ok(Options::State(parse_as(v)?)),
         run: |o, ws, m, a, feed| state_flash("flash_tv", o, ws, m, a, feed),
@@ -471,15 +561,62 @@ pub static CALCULATIONS: &[Calculation] = &[
         name: "flash_uv",
         summary: "the equilibrium state at given molar internal energy and volume (a closed, rigid vessel)",
         arguments: &[U_ARG, V_ARG],
+        feed_extension: None,
         defaults: defaults_of::<StateFlashOptions>,
         parse: |v| Ok(Options::State(parse_as(v)?)),
         run: |o, ws, m, a, feed| state_flash("flash_uv", o, ws, m, a, feed),
+    },
+    Calculation {
+        name: "reaction_tp",
+        summary: "chemical equilibrium at given temperature and pressure: the least Gibbs energy under the \
+                  element balances (Gordon & McBride 1994 Lagrangian Newton); feed = the model's \
+                  components, then the extra species",
+        arguments: &[T_ARG, P_ARG],
+        feed_extension: Some("extra_species"),
+        defaults: defaults_of::<ReactionCalcOptions>,
+        parse: |v| Ok(Options::Reaction(parse_as(v)?)),
+        run: |o, ws, m, a, feed| reaction("reaction_tp", o, ws, m, a, feed),
+    },
+    Calculation {
+        name: "reaction_hp",
+        summary: "chemical equilibrium at given pressure and total enthalpy (J; adiabatic flame \
+                  temperature at constant pressure)",
+        arguments: &[
+            P_ARG,
+            Argument {
+                name: "enthalpy",
+                unit: "J",
+                doc: "total enthalpy of the feed (e.g. of the reactants at their inlet temperature)",
+            },
+        ],
+        feed_extension: Some("extra_species"),
+        defaults: defaults_of::<ReactionCalcOptions>,
+        parse: |v| Ok(Options::Reaction(parse_as(v)?)),
+        run: |o, ws, m, a, feed| reaction("reaction_hp", o, ws, m, a, feed),
+    },
+    Calculation {
+        name: "reaction_sp",
+        summary: "chemical equilibrium at given pressure and total entropy (J/K; isentropic expansion \
+                  of equilibrium products)",
+        arguments: &[
+            P_ARG,
+            Argument {
+                name: "entropy",
+                unit: "J/K",
+                doc: "total entropy of the mixture",
+            },
+        ],
+        feed_extension: Some("extra_species"),
+        defaults: defaults_of::<ReactionCalcOptions>,
+        parse: |v| Ok(Options::Reaction(parse_as(v)?)),
+        run: |o, ws, m, a, feed| reaction("reaction_sp", o, ws, m, a, feed),
     },
     Calculation {
         name: "phase_envelope",
         summary: "the bubble and dew curves of a mixture traced through its critical point, with the \
                   cricondenbar, the cricondentherm and optional quality lines (Michelsen 1980)",
         arguments: &[],
+        feed_extension: None,
         defaults: defaults_of::<EnvelopeOptions>,
         parse: |v| Ok(Options::Envelope(parse_as(v)?)),
         run: |o, _ws, m, _a, feed| {
@@ -496,6 +633,7 @@ pub static CALCULATIONS: &[Calculation] = &[
         name: "critical_point",
         summary: "the critical point of a mixture of given composition (Heidemann & Khalil 1980 criteria)",
         arguments: &[],
+        feed_extension: None,
         defaults: defaults_of::<CriticalOptions>,
         parse: |v| Ok(Options::Critical(parse_as(v)?)),
         run: |o, _ws, m, _a, feed| {

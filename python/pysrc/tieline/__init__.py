@@ -43,7 +43,18 @@ from ._api import (
 )
 from ._pure import PureSubstance
 from ._calc import Record, Sweep, calculate, calculations, describe
-from ._named import critical_point, flash_ph, flash_ps, flash_sensitivities, flash_tv, flash_uv, phase_envelope
+from ._named import (
+    critical_point,
+    flash_ph,
+    flash_ps,
+    flash_sensitivities,
+    flash_tv,
+    flash_uv,
+    phase_envelope,
+    reaction_hp,
+    reaction_sp,
+    reaction_tp,
+)
 from ._errors import (
     ConvergenceError,
     DataError,
@@ -101,6 +112,9 @@ __all__ = [
     "flash_sensitivities",
     "phase_envelope",
     "critical_point",
+    "reaction_tp",
+    "reaction_hp",
+    "reaction_sp",
     "calculations",
     "describe",
     "Record",

@@ -117,6 +117,28 @@ class Sweep:
         return f"Sweep({self.kind}, shape={self.shape}, fields={len(self._columns)}, failures={len(self.failures)})"
 
 
+def _broadcast_rows(z: np.ndarray, *coords: Tuple[Any, str]) -> Tuple[Tuple[int, ...], List[np.ndarray], np.ndarray]:
+    """The coordinates broadcast with the leading axes of the feed rows ``z`` (already checked):
+    the shape, the flat coordinates, and the feeds as 1 or N contiguous rows."""
+    from ._api import _array
+
+    arrays = [_array(c, what) for c, what in coords]
+    try:
+        shape = np.broadcast_shapes(*(a.shape for a in arrays), z.shape[:-1])
+    except ValueError:
+        shapes = ", ".join(f"{what} {a.shape}" for a, (_, what) in zip(arrays, coords))
+        raise _invalid(
+            "shapes", f"{shapes} and feed {z.shape} do not broadcast together (numpy rules; the feed's last axis is the component axis)"
+        ) from None
+    flat = [np.ascontiguousarray(np.broadcast_to(a, shape), dtype=np.float64).reshape(-1) for a in arrays]
+    width = z.shape[-1]
+    if z.ndim == 1:
+        zf = np.ascontiguousarray(z, dtype=np.float64).reshape(1, width)
+    else:
+        zf = np.ascontiguousarray(np.broadcast_to(z, tuple(shape) + (width,)), dtype=np.float64).reshape(-1, width)
+    return tuple(shape), flat, zf
+
+
 def _is_scalar(x: Any) -> bool:
     from ._api import _is_scalar as s
 
@@ -160,7 +182,16 @@ def calculate(
         A :class:`Record` when every argument is a scalar and the feed one row, else a
         :class:`Sweep`.
     """
-    from ._api import _broadcast, _check_model, _check_progress, _check_threads, _failures, _feed, _on_error, _scalar
+    from ._api import (
+        _array,
+        _check_model,
+        _check_progress,
+        _check_threads,
+        _failures,
+        _feed,
+        _on_error,
+        _scalar,
+    )
 
     _check_model(model)
     spec = describe(name)
@@ -169,13 +200,27 @@ def calculate(
         names = ", ".join(f"{a[0]} ({a[1]})" for a in argspec)
         raise _invalid("arguments", f"{len(args)} given; {name} takes {len(argspec)}: {names}")
     opts = _options_json(options)
-    z = _feed(model, feed)
+    ext = spec.get("feed_extension")
+    if ext:
+        extra = options.get(ext) or []
+        if isinstance(extra, (str, bytes)):
+            raise _invalid(ext, f"{extra!r}; a list of names is required")
+        z = _array(feed, "feed")
+        width = model.num_components + len(extra)
+        if z.ndim == 0 or z.shape[-1] != width:
+            raise _invalid(
+                "feed",
+                f"shape {z.shape}; one amount per component of the model and per entry of {ext} "
+                f"({width}) is required",
+            )
+    else:
+        z = _feed(model, feed)
     if all(_is_scalar(a) for a in args) and z.ndim == 1:
         vals = [_scalar(a, s[0]) for a, s in zip(args, argspec)]
         return _core.calc_point(model, name, vals, np.ascontiguousarray(z, dtype=np.float64), opts)
     raise_errors = _on_error(on_error)
     coords = [(a, s[0]) for a, s in zip(args, argspec)]
-    shape, flat, zf, _stored = _broadcast(model, z, *coords)
+    shape, flat, zf = _broadcast_rows(z, *coords)
     raw = _core.calc_sweep(
         model, name, flat, zf, opts, int(block), _check_threads(threads), _check_progress(progress), raise_errors
     )

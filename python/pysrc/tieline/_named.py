@@ -13,7 +13,7 @@ from typing import Any, Optional
 from ._calc import calculate
 from ._core import Model
 
-__all__ = ["flash_ph", "flash_ps", "flash_tv", "flash_uv", "flash_sensitivities", "phase_envelope", "critical_point"]
+__all__ = ["flash_ph", "flash_ps", "flash_tv", "flash_uv", "flash_sensitivities", "phase_envelope", "critical_point", "reaction_tp", "reaction_hp", "reaction_sp"]
 
 
 def flash_sensitivities(
@@ -144,3 +144,46 @@ flash_uv.__doc__ = _STATE_DOC.format(
     title="UV flash: the equilibrium state of a closed rigid vessel (internal energy and volume per mol).",
     a="internal_energy", a_doc="Molar internal energy, J/mol.", b="volume", b_doc="Volume per mol of feed, m3/mol.",
     derivs="``d_temperature_d_internal_energy``, ``d_temperature_d_volume``, ``d_pressure_d_*``")
+
+
+_REACTION_DOC = """{title}
+
+The species are the model's components followed by ``extra_species`` (names or aliases in the
+species data: radicals such as ``"OH"``, ``"H"``, ``"O"``, ``"NO"``, or condensed species such as
+``"graphite"`` and ``"liquid water"``); the feed lists their amounts in that order (mol). The gas
+is ideal unless ``real_gas=True`` (fugacity coefficients from the model; the extra species must
+then be condensed). Method: the Lagrangian Newton of Gordon & McBride (1994) under the element
+balances; species whose elements the feed lacks are excluded (``excluded_species``).
+
+Fields: ``temperature`` (K), ``pressure`` (Pa), ``species``, ``amounts`` (mol),
+``gas_mole_fractions``, ``condensed`` (present condensed species), ``elements`` and
+``element_potentials`` (J/mol, the Lagrange multipliers), ``enthalpy`` (J), ``entropy`` (J/K),
+``gibbs_energy`` (J), ``cp_equilibrium`` and ``cp_frozen`` (J/K), ``certificate`` (least reduced
+Gibbs energy of the absent species; ≥ 0 at the minimum), ``iterations``.
+
+Options: ``extra_species``, ``real_gas``, ``tolerance``, ``max_iterations``, ``condensed``
+(allow condensed species), ``t_min``, ``t_max``, ``t_guess`` (HP/SP search, K).
+
+Caution: equilibrium is a limit, not a prediction of kinetics; design of burners, vents and
+relief systems defers to the applicable codes and licensed practice.
+"""
+
+
+def reaction_tp(model: Model, temperature: Any, pressure: Any, feed: Any, **kw: Any) -> Any:
+    return calculate("reaction_tp", model, temperature, pressure, feed=feed, **kw)
+
+
+def reaction_hp(model: Model, pressure: Any, enthalpy: Any, feed: Any, **kw: Any) -> Any:
+    return calculate("reaction_hp", model, pressure, enthalpy, feed=feed, **kw)
+
+
+def reaction_sp(model: Model, pressure: Any, entropy: Any, feed: Any, **kw: Any) -> Any:
+    return calculate("reaction_sp", model, pressure, entropy, feed=feed, **kw)
+
+
+reaction_tp.__doc__ = _REACTION_DOC.format(
+    title="Chemical equilibrium at given temperature (K) and pressure (Pa): the least Gibbs energy.")
+reaction_hp.__doc__ = _REACTION_DOC.format(
+    title="Chemical equilibrium at given pressure (Pa) and total enthalpy (J): the adiabatic flame.")
+reaction_sp.__doc__ = _REACTION_DOC.format(
+    title="Chemical equilibrium at given pressure (Pa) and total entropy (J/K): isentropic expansion.")

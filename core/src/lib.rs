@@ -28,6 +28,7 @@
 
 pub mod equilibrium;
 pub mod error;
+pub mod limits;
 pub mod model;
 pub mod numerics;
 pub mod substance;

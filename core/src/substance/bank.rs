@@ -161,9 +161,29 @@ impl DataBank {
             .ok_or_else(|| self.unknown(key))
     }
 
-    /// Looks several components up at once, in order.
+    /// Looks several components up at once, in order. Two keys that name the same component
+    /// (the same name twice, or a name and its alias or CAS number, e.g. "methane" and "CH4")
+    /// are refused with [`Error::InvalidInput`]: a model has each component once.
     pub fn get_many<S: AsRef<str>>(&self, keys: &[S]) -> Result<Vec<Component>> {
-        keys.iter().map(|k| self.get(k.as_ref()).cloned()).collect()
+        crate::error::check::count("components", keys.len(), 1, crate::limits::MAX_COMPONENTS)?;
+        let mut ids: Vec<usize> = Vec::with_capacity(keys.len());
+        for (pos, k) in keys.iter().enumerate() {
+            let k = k.as_ref();
+            let id = *self.index.get(&normalise(k)).ok_or_else(|| self.unknown(k))?;
+            if let Some(first) = ids.iter().position(|&other| other == id) {
+                return Err(Error::invalid(
+                    "components",
+                    format!(
+                        "'{k}' (position {pos}) names '{}', already given as '{}' (position {first}); \
+                         each component may appear once",
+                        self.components[id].name,
+                        keys[first].as_ref()
+                    ),
+                ));
+            }
+            ids.push(id);
+        }
+        Ok(ids.into_iter().map(|i| self.components[i].clone()).collect())
     }
 
     fn unknown(&self, key: &str) -> Error {

@@ -107,7 +107,7 @@ pub enum Error {
 }
 
 /// A number as every message of the library prints it: the shortest decimal form that reads
-/// back to the same `f64`, positional for 1e-4 <= |x| < 1e6 (`190.564`, `0.5`, `101325`) and
+/// back to the same `f64`, positional for 1e-3 <= |x| < 1e6 (`190.564`, `0.5`, `101325`) and
 /// with an exponent otherwise (`1e-300`, `1e-11`, `2.5e6`); `NaN`, `inf` and `-inf` for the
 /// non-finite values. Never more digits than the value needs.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -120,7 +120,7 @@ impl fmt::Display for Num {
             f.write_str("NaN")
         } else if x.is_infinite() {
             f.write_str(if x > 0.0 { "inf" } else { "-inf" })
-        } else if x == 0.0 || (1e-4..1e6).contains(&x.abs()) {
+        } else if x == 0.0 || (1e-3..1e6).contains(&x.abs()) {
             write!(f, "{x}")
         } else {
             write!(f, "{x:e}")
@@ -405,7 +405,8 @@ mod tests {
             (0.5, "0.5"),
             (-40.0, "-40"),
             (0.0, "0"),
-            (1e-4, "0.0001"),
+            (1e-4, "1e-4"),
+            (0.001, "0.001"),
             (f64::NAN, "NaN"),
             (f64::INFINITY, "inf"),
             (f64::NEG_INFINITY, "-inf"),

@@ -246,7 +246,10 @@ fn kij_entries(py: Python<'_>, kij: &Bound<'_, PyAny>, names: &[String], bank: &
         return Err(invalid(
             py,
             "kij",
-            &format!("{x} in the matrix; finite values are required"),
+            &format!(
+                "{x} in the matrix; finite values are required",
+                x = tieline::error::num(*x)
+            ),
         ));
     }
     for i in 0..nc {
@@ -617,7 +620,10 @@ impl PyModel {
             return Err(invalid(
                 py,
                 "temperature",
-                &format!("{temperature} K; a finite value > 0 K is required"),
+                &format!(
+                    "{temperature} K; a finite value > 0 K is required",
+                    temperature = tieline::error::num(temperature)
+                ),
             ));
         }
         let Some(eos) = self.cubic() else {
@@ -699,7 +705,7 @@ impl PyFlashOptions {
                 return Err(invalid(
                     py,
                     "tolerance",
-                    &format!("{x}; a value in (0, 1e-2) is required"),
+                    &format!("{x}; a value in (0, 1e-2) is required", x = tieline::error::num(x)),
                 ));
             }
             o.tolerance = x;
@@ -721,7 +727,7 @@ impl PyFlashOptions {
                 return Err(invalid(
                     py,
                     "stability_tolerance",
-                    &format!("{x}; a value in (0, 1e-2) is required"),
+                    &format!("{x}; a value in (0, 1e-2) is required", x = tieline::error::num(x)),
                 ));
             }
             o.stability.tolerance = x;
@@ -832,7 +838,7 @@ fn stability_point<'py>(
             return Err(invalid(
                 py,
                 "tolerance",
-                &format!("{t}; a value in (0, 1e-2) is required"),
+                &format!("{t}; a value in (0, 1e-2) is required", t = tieline::error::num(t)),
             ));
         }
         o.tolerance = t;
@@ -842,7 +848,7 @@ fn stability_point<'py>(
             return Err(invalid(
                 py,
                 "threshold",
-                &format!("{t}; a finite value >= 0 is required"),
+                &format!("{t}; a finite value >= 0 is required", t = tieline::error::num(t)),
             ));
         }
         o.threshold = t;

@@ -106,6 +106,7 @@ CONVERSIONS = [
     ("max-newton-10**30", lambda: tl.flash(BINARY, 300.0, 1e6, [0.5, 0.5], max_newton_iterations=10**30), "max_newton_iterations", "0 to 100000"),
     ("block-10**30", lambda: tl.flash(BINARY, [300.0], 1e6, [0.5, 0.5], block=10**30), "block", "1 to 10000000"),
     ("saturation-iterations-negative", lambda: tl.saturation_pressure(BINARY, 150.0, 0, max_iterations=-5), "max_iterations", "1 to 100000"),
+    ("max-phases-10**30", lambda: tl.flash(BINARY, 300.0, 1e6, [0.5, 0.5], max_phases=10**30), "max_phases", "1e30; 2 or 3"),
     ("toml-bytes", lambda: tl.ComponentBank.from_toml(b"[references]"), "text", "str"),
 ]
 

@@ -83,7 +83,7 @@ def _scalar(x: Any, what: str) -> float:
 
 def _array(x: Any, what: str) -> np.ndarray:
     if isinstance(x, (bool, np.bool_, str, bytes)):
-        raise _invalid(what, f"{x!r}; numbers are required")
+        raise _invalid(what, f"{_show(x)}; numbers are required")
     try:
         a = np.asarray(x)
     except (TypeError, ValueError):
@@ -113,15 +113,21 @@ def _on_error(on_error: str) -> bool:
     raise _invalid("on_error", f"{on_error!r}; \"raise\" or \"flag\" is required")
 
 
+def _show(x: Any) -> str:
+    """A value for a message: repr, with a huge integer in the core's compact number form."""
+    r = repr(x)
+    if isinstance(x, numbers.Integral) and not isinstance(x, bool) and len(r) > 24:
+        return _core.format_number(float(x))
+    return r
+
+
 def _count(what: str, value: Any, lo: int, hi: int, note: str = "") -> int:
     """An integer argument in [lo, hi] (a documented limit of the core), checked before it
     reaches the compiled code, so that a bool, a float, a str, a negative or an enormous value
     is an InvalidInputError naming the argument and the range, never a TypeError or an
     OverflowError of the conversion."""
-    if isinstance(value, bool) or not isinstance(value, numbers.Integral) or not lo <= value <= hi:
-        shown = repr(value) if isinstance(value, numbers.Integral) and not isinstance(value, bool) else type(value).__name__
-        if isinstance(value, numbers.Integral) and not isinstance(value, bool) and len(shown) > 24:
-            shown = f"{int(value):.3e}"
+    if isinstance(value, bool) or not isinstance(value, numbers.Integral) or not lo <= int(value) <= hi:
+        shown = _show(value) if isinstance(value, numbers.Integral) and not isinstance(value, bool) else type(value).__name__
         raise _invalid(what, f"{shown}; an integer from {lo} to {hi}{note} is required")
     return int(value)
 
@@ -187,7 +193,7 @@ def _flash_options(
     max_phases: int = 2,
 ) -> _core.FlashOptions:
     if isinstance(max_phases, bool) or not isinstance(max_phases, numbers.Integral) or max_phases not in (2, 3):
-        raise _invalid("max_phases", f"{max_phases!r}; 2 or 3 is required")
+        raise _invalid("max_phases", f"{_show(max_phases)}; 2 or 3 is required")
     return _core.FlashOptions(
         tolerance,
         _check_iterations("max_ss_iterations", max_ss_iterations),

@@ -29,6 +29,7 @@
 pub mod calc;
 pub mod equilibrium;
 pub mod error;
+pub mod limits;
 pub mod model;
 pub mod numerics;
 pub mod substance;

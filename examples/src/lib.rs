@@ -10,6 +10,10 @@ use tieline::{Error, Result};
 /// Parses a temperature with an optional unit suffix: `300`, `300K`, `26.85C` → K.
 pub fn parse_temperature(s: &str) -> Result<f64> {
     let s = s.trim();
+    if let Ok(v) = s.parse::<f64>() {
+        // Plain numbers, also nan, inf and 1e999 (inf): the library's checks word those.
+        return Ok(v);
+    }
     let (num, unit) = split_unit(s);
     let v: f64 = num
         .parse()
@@ -27,6 +31,9 @@ pub fn parse_temperature(s: &str) -> Result<f64> {
 /// Parses a pressure with an optional unit suffix: `5e6`, `50bar`, `5MPa`, `101.325kPa` → Pa.
 pub fn parse_pressure(s: &str) -> Result<f64> {
     let s = s.trim();
+    if let Ok(v) = s.parse::<f64>() {
+        return Ok(v);
+    }
     let (num, unit) = split_unit(s);
     let v: f64 = num
         .parse()

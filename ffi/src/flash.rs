@@ -345,12 +345,8 @@ pub unsafe extern "C" fn tl_flash_batch(
                 format!("the output arrays hold {} points; {npts} are required", o.points),
             ));
         }
-        if threads > 256 {
-            return Err(FfiError::invalid(
-                "threads",
-                format!("{threads}; at most 256 are allowed"),
-            ));
-        }
+        tieline::error::check::count("threads", threads, 0, tieline::limits::MAX_THREADS)?;
+        tieline::error::check::count("npts", npts, 0, tieline::limits::MAX_POINTS)?;
         let nc = m.num_components();
         let per_point = if feeds.len() == nc {
             false

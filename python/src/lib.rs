@@ -50,8 +50,18 @@ impl PyBank {
     /// to those of the embedded bank.
     #[staticmethod]
     #[pyo3(signature = (text, include_embedded=false))]
-    fn from_toml(py: Python<'_>, text: &str, include_embedded: bool) -> PyResult<Self> {
-        let user = check(py, DataBank::from_toml_str(text))?;
+    fn from_toml(py: Python<'_>, text: &Bound<'_, PyAny>, include_embedded: bool) -> PyResult<Self> {
+        let text: String = text.extract().map_err(|_| {
+            errors::invalid(
+                py,
+                "text",
+                &format!(
+                    "{}; the TOML text as str is required (decode bytes first, e.g. data.decode(\"utf-8\"))",
+                    text.get_type().name().map(|n| n.to_string()).unwrap_or_default()
+                ),
+            )
+        })?;
+        let user = check(py, DataBank::from_toml_str(&text))?;
         if !include_embedded {
             return Ok(PyBank {
                 inner: Arc::new(user),
@@ -76,7 +86,7 @@ impl PyBank {
     #[pyo3(signature = (path, include_embedded=false))]
     fn from_file(py: Python<'_>, path: std::path::PathBuf, include_embedded: bool) -> PyResult<Self> {
         let text = std::fs::read_to_string(&path)?;
-        Self::from_toml(py, &text, include_embedded)
+        Self::from_toml(py, &pyo3::types::PyString::new(py, &text).into_any(), include_embedded)
     }
 
     /// Canonical names of the components, in file order.
@@ -237,7 +247,10 @@ fn kij_entries(py: Python<'_>, kij: &Bound<'_, PyAny>, names: &[String], bank: &
         return Err(invalid(
             py,
             "kij",
-            &format!("{x} in the matrix; finite values are required"),
+            &format!(
+                "{x} in the matrix; finite values are required",
+                x = tieline::error::num(*x)
+            ),
         ));
     }
     for i in 0..nc {
@@ -608,7 +621,10 @@ impl PyModel {
             return Err(invalid(
                 py,
                 "temperature",
-                &format!("{temperature} K; a finite value > 0 K is required"),
+                &format!(
+                    "{temperature} K; a finite value > 0 K is required",
+                    temperature = tieline::error::num(temperature)
+                ),
             ));
         }
         let Some(eos) = self.cubic() else {
@@ -690,7 +706,7 @@ impl PyFlashOptions {
                 return Err(invalid(
                     py,
                     "tolerance",
-                    &format!("{x}; a value in (0, 1e-2) is required"),
+                    &format!("{x}; a value in (0, 1e-2) is required", x = tieline::error::num(x)),
                 ));
             }
             o.tolerance = x;
@@ -712,7 +728,7 @@ impl PyFlashOptions {
                 return Err(invalid(
                     py,
                     "stability_tolerance",
-                    &format!("{x}; a value in (0, 1e-2) is required"),
+                    &format!("{x}; a value in (0, 1e-2) is required", x = tieline::error::num(x)),
                 ));
             }
             o.stability.tolerance = x;
@@ -823,7 +839,7 @@ fn stability_point<'py>(
             return Err(invalid(
                 py,
                 "tolerance",
-                &format!("{t}; a value in (0, 1e-2) is required"),
+                &format!("{t}; a value in (0, 1e-2) is required", t = tieline::error::num(t)),
             ));
         }
         o.tolerance = t;
@@ -833,7 +849,7 @@ fn stability_point<'py>(
             return Err(invalid(
                 py,
                 "threshold",
-                &format!("{t}; a finite value >= 0 is required"),
+                &format!("{t}; a finite value >= 0 is required", t = tieline::error::num(t)),
             ));
         }
         o.threshold = t;
@@ -1100,10 +1116,37 @@ fn _phase_state<'py>(
     })
 }
 
-/// Sets the default number of threads of batch calls (0: one per core).
+/// Sets the default number of threads of batch calls (0: one per core; at most
+/// `MAX_THREADS`, more is an InvalidInputError, never clamped).
 #[pyfunction]
-fn set_threads(n: usize) {
-    parallel::set_default_threads(n);
+fn set_threads(py: Python<'_>, n: &Bound<'_, PyAny>) -> PyResult<()> {
+    let bad = || {
+        errors::invalid(
+            py,
+            "threads",
+            &format!(
+                "{}; an integer from 0 to {} (0: one per core) is required",
+                n.repr().map(|r| r.to_string()).unwrap_or_default(),
+                tieline::limits::MAX_THREADS
+            ),
+        )
+    };
+    if n.is_instance_of::<pyo3::types::PyBool>() {
+        return Err(bad());
+    }
+    let v: usize = n.extract().map_err(|_| bad())?;
+    check(
+        py,
+        tieline::error::check::count("threads", v, 0, tieline::limits::MAX_THREADS),
+    )?;
+    parallel::set_default_threads(v);
+    Ok(())
+}
+
+/// Compact form of a number as every message of the library prints it (`1e-300`, `2.5e6`).
+#[pyfunction]
+fn format_number(x: f64) -> String {
+    tieline::error::num(x).to_string()
 }
 
 /// The number of threads a batch call uses by default.
@@ -1155,6 +1198,11 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(calc::calc_point, m)?)?;
     m.add_function(wrap_pyfunction!(calc::calc_sweep, m)?)?;
     m.add_function(wrap_pyfunction!(set_threads, m)?)?;
+    m.add_function(wrap_pyfunction!(format_number, m)?)?;
+    m.add("MAX_THREADS", tieline::limits::MAX_THREADS)?;
+    m.add("MAX_ITERATIONS", tieline::limits::MAX_ITERATIONS)?;
+    m.add("MAX_POINTS", tieline::limits::MAX_POINTS)?;
+    m.add("MAX_COMPONENTS", tieline::limits::MAX_COMPONENTS)?;
     m.add_function(wrap_pyfunction!(get_threads, m)?)?;
     Ok(())
 }

@@ -35,6 +35,12 @@ fn pool(n: usize) -> Result<Option<Arc<rayon::ThreadPool>>, String> {
     if n == 0 {
         return Ok(None);
     }
+    if n > tieline::limits::MAX_THREADS {
+        return Err(format!(
+            "{n}; an integer from 0 to {} (0: one per core) is required",
+            tieline::limits::MAX_THREADS
+        ));
+    }
     let mut map = pools()
         .lock()
         .map_err(|_| "thread-pool registry poisoned".to_string())?;

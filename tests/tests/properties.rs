@@ -119,6 +119,42 @@ proptest! {
             }
         }
     }
+
+    /// Extreme but valid states (T from 1e-3 K to 1e4 K, p from 1e-6 Pa to 1e9 Pa) and
+    /// interaction parameters anywhere in the accepted range: never an InvalidInput (the
+    /// caller's input was valid), every message read once, numbers printed compactly.
+    #[test]
+    fn extreme_valid_states_never_blame_the_input(
+        lt in -3.0f64..4.0,
+        lp in -6.0f64..9.0,
+        k0 in -1.0f64..1.0,
+        k1 in -0.01f64..0.01,
+        n in prop::collection::vec(0.01f64..1.0, 6),
+    ) {
+        let (t, p) = (10f64.powf(lt), 10f64.powf(lp));
+        let m = match model(CubicKind::PengRobinson).with_pair(2, 3, k0, k1) {
+            Ok(m) => m,
+            // Only a pair with |k_ij(T)| > 1 at every T > 0 is refused, and by name.
+            Err(e) => {
+                prop_assert!(e.to_string().contains("k_ij"), "{}", e);
+                return Ok(());
+            }
+        };
+        let outcomes = [
+            flash_pt(&m, t, p, &n, &FlashOptions::default()).map(|_| ()),
+            stability(&m, t, p, &n, &StabilityOptions::default()).map(|_| ()),
+        ];
+        for o in outcomes {
+            if let Err(e) = o {
+                let msg = e.to_string();
+                prop_assert!(e.kind() != ErrorKind::InvalidInput, "valid input blamed: {}", msg);
+                for prefix in ["invalid input:", "no solution:", "outside validity range:"] {
+                    prop_assert!(msg.matches(prefix).count() <= 1, "{}", msg);
+                }
+                prop_assert!(!msg.chars().collect::<Vec<_>>().windows(20).any(|w| w.iter().all(|c| c.is_ascii_digit())), "{}", msg);
+            }
+        }
+    }
 }
 
 #[test]

@@ -3,7 +3,8 @@
 //! sweep ordered along T or p gets the benefit of warm starts on every thread.
 
 use super::flash::{FlashContext, FlashOptions, FlashResult};
-use crate::error::{Error, Result};
+use crate::error::{Error, Result, check};
+use crate::limits::{MAX_POINTS, MAX_THREADS};
 use crate::model::FluidModel;
 use rayon::prelude::*;
 
@@ -17,7 +18,9 @@ pub fn chunk_len(npts: usize, threads: usize) -> usize {
 
 /// Flashes `t.len()` points. `t` (K) and `p` (Pa) have one value per point; `feeds` holds
 /// either one feed of `nc` amounts (mol) shared by every point or one row of `nc` per point
-/// (row-major). `threads` = 0 uses rayon's global pool, otherwise a pool of that many threads.
+/// (row-major). `threads` = 0 uses rayon's global pool, otherwise a pool of that many threads
+/// (at most [`MAX_THREADS`], never clamped: more is [`Error::InvalidInput`]); at most
+/// [`MAX_POINTS`] points.
 /// Each point's outcome is returned separately: one bad point does not spoil the batch.
 pub fn flash_batch<M: FluidModel + ?Sized>(
     model: &M,
@@ -29,6 +32,8 @@ pub fn flash_batch<M: FluidModel + ?Sized>(
 ) -> Result<Vec<Result<FlashResult>>> {
     let nc = model.num_components();
     let npts = t.len();
+    check::count("threads", threads, 0, MAX_THREADS)?;
+    check::count("temperatures", npts, 0, MAX_POINTS)?;
     if p.len() != npts {
         return Err(Error::invalid(
             "pressures",

@@ -25,7 +25,7 @@ use super::EquilibriumWork;
 use super::multiphase::{ThreeOutcome, ThreePhase, three_phase};
 use super::rachford_rice;
 use super::stability::{StabilityOptions, StabilityResult, stability_with};
-use crate::error::{Error, Result, check};
+use crate::error::{Error, Result, check, num};
 use crate::model::{FluidModel, LnPhi, Need, PhaseKind, RootChoice, ln_phi};
 use crate::numerics::linalg::{cholesky_solve, shifted_cholesky_solve};
 use serde::{Deserialize, Serialize};
@@ -71,9 +71,13 @@ impl FlashOptions {
         if !(self.tolerance > 0.0 && self.tolerance < 1e-2) {
             return Err(Error::invalid(
                 "tolerance",
-                format!("{}; a value in (0, 1e-2) is required", self.tolerance),
+                format!("{}; a value in (0, 1e-2) is required", num(self.tolerance)),
             ));
         }
+        let most = crate::limits::MAX_ITERATIONS;
+        check::count("max_ss_iterations", self.max_ss_iterations, 0, most)?;
+        check::count("max_newton_iterations", self.max_newton_iterations, 0, most)?;
+        check::count("stability max_iterations", self.stability.max_iterations, 0, most)?;
         if !(2..=3).contains(&self.max_phases) {
             return Err(Error::invalid(
                 "max_phases",
@@ -83,7 +87,7 @@ impl FlashOptions {
         if !(self.stability.tolerance > 0.0 && self.stability.tolerance < 1e-2) {
             return Err(Error::invalid(
                 "stability tolerance",
-                format!("{}; a value in (0, 1e-2) is required", self.stability.tolerance),
+                format!("{}; a value in (0, 1e-2) is required", num(self.stability.tolerance)),
             ));
         }
         Ok(())
@@ -364,12 +368,35 @@ impl FlashContext {
             self.ws.z[i] = n[i] / ntot;
         }
         let mut diag = Diagnostics::default();
+        if let Err(e) = self.solve(model, t, p, n, ntot, opts, &mut diag) {
+            let its = vec![
+                ("stability".into(), diag.stability_iterations),
+                ("SS".into(), diag.ss_iterations),
+                ("Newton".into(), diag.newton_iterations),
+            ];
+            return Err(e.from_inside("PT flash", t, p, its, opts.tolerance));
+        }
+        Ok(&self.result)
+    }
+
+    /// The flash proper, on checked inputs (the feed already normalised into `ws.z`).
+    #[allow(clippy::too_many_arguments)]
+    fn solve<M: FluidModel + ?Sized>(
+        &mut self,
+        model: &M,
+        t: f64,
+        p: f64,
+        n: &[f64],
+        ntot: f64,
+        opts: &FlashOptions,
+        diag: &mut Diagnostics,
+    ) -> Result<()> {
         let mut found = false;
         self.feed_evaluated = false;
         self.three = None;
         if self.prev_two_phase {
             self.ws.lnk.copy_from_slice(&self.prev_lnk);
-            let out = self.two_phase(model, t, p, opts, true, &mut diag)?;
+            let out = self.two_phase(model, t, p, opts, true, diag)?;
             if out == SplitOutcome::Converged {
                 self.best.copy_from(&self.split);
                 diag.warm_start = true;
@@ -378,15 +405,14 @@ impl FlashContext {
             }
         }
         if !found {
-            found = self.cold(model, t, p, opts, &mut diag)?;
+            found = self.cold(model, t, p, opts, diag)?;
         }
         if found && opts.certificate {
-            self.certify(model, t, p, opts, &mut diag)?;
+            self.certify(model, t, p, opts, diag)?;
         } else if !found {
             diag.certificate = opts.certificate.then_some(self.stab.min_tpd);
         }
-        self.finish(model, t, p, n, ntot, found, opts, diag)?;
-        Ok(&self.result)
+        self.finish(model, t, p, n, ntot, found, opts, diag.clone())
     }
 
     /// Cold path: stability of the feed, then a split per negative stationary point.
@@ -476,9 +502,11 @@ impl FlashContext {
                 if !self.cert.stable {
                     return Err(Error::NoSolution(format!(
                         "at T = {t} K, p = {p} Pa the least-Gibbs state has more than two phases \
-                         (a third phase lowers G: tangent-plane distance {:.3e}); \
+                         (a third phase lowers G: tangent-plane distance {}); \
                          allow a third phase (max_phases = 3) to compute it",
-                        self.cert.min_tpd
+                        num(self.cert.min_tpd),
+                        t = num(t),
+                        p = num(p)
                     )));
                 }
                 return Ok(());
@@ -644,7 +672,10 @@ impl FlashContext {
             ThreeOutcome::Collapsed(None) => {
                 return Err(Error::NoSolution(format!(
                     "at T = {t} K, p = {p} Pa a third phase lowers G below the best two-phase split \
-                     (tangent-plane distance {tpd:.3e}), but the three-phase search from it collapsed"
+                     (tangent-plane distance {tpd}), but the three-phase search from it collapsed",
+                    t = num(t),
+                    p = num(p),
+                    tpd = num(tpd)
                 )));
             }
         };
@@ -654,8 +685,10 @@ impl FlashContext {
         if !self.cert.stable {
             return Err(Error::NoSolution(format!(
                 "at T = {t} K, p = {p} Pa the least-Gibbs state has more than three phases \
-                     (a fourth phase lowers G: tangent-plane distance {:.3e})",
-                self.cert.min_tpd
+                     (a fourth phase lowers G: tangent-plane distance {})",
+                num(self.cert.min_tpd),
+                t = num(t),
+                p = num(p)
             )));
         }
         self.three = Some(tp);
@@ -692,8 +725,11 @@ impl FlashContext {
         }
         Err(Error::NoSolution(format!(
             "at T = {t} K, p = {p} Pa a third phase lowers G below the best two-phase split \
-             (tangent-plane distance {tpd:.3e}), but neither a three-phase split nor the \
-             two-phase split left when a phase vanished is stable"
+             (tangent-plane distance {tpd}), but neither a three-phase split nor the \
+             two-phase split left when a phase vanished is stable",
+            t = num(t),
+            p = num(p),
+            tpd = num(tpd)
         )))
     }
 
@@ -1143,7 +1179,9 @@ impl FlashContext {
             if tp.phi[light].liquid_like && t < kay {
                 return Err(Error::NoSolution(format!(
                     "at T = {t} K, p = {p} Pa the least-Gibbs state has three liquid phases, \
-                     which the result does not represent"
+                     which the result does not represent",
+                    t = num(t),
+                    p = num(p)
                 )));
             }
             let kinds = [PhaseKind::Vapor, PhaseKind::Liquid2, PhaseKind::Liquid];

@@ -18,7 +18,7 @@
 //! liquid and the lighter the vapour (metastable branches included); with one root, it is
 //! the liquid or the vapour by the model's [`FluidModel::is_liquid_like`] rule.
 
-use crate::error::{Error, Result, check};
+use crate::error::{Error, Result, check, num};
 use crate::model::solid::SolidModel;
 use crate::model::{FluidModel, HelmholtzDerivs, PhaseKind, PhaseState};
 use crate::substance::R;
@@ -255,7 +255,9 @@ impl<'a, F: FluidModel + ?Sized> PurePhases<'a, F> {
     fn must(&self, phase: PurePhase, t: f64, p: f64) -> Result<PhasePoint> {
         self.evaluate(phase, t, p)?.ok_or_else(|| {
             Error::NoSolution(format!(
-                "the {phase:?} phase does not exist (or is outside its model's range) at T = {t} K, p = {p} Pa"
+                "the {phase:?} phase does not exist (or is outside its model's range) at T = {t} K, p = {p} Pa",
+                t = num(t),
+                p = num(p)
             ))
         })
     }
@@ -271,7 +273,11 @@ impl<'a, F: FluidModel + ?Sized> PurePhases<'a, F> {
         }
         c.sort_by(|a, b| a.gibbs.total_cmp(&b.gibbs));
         let stable = *c.first().ok_or_else(|| {
-            Error::NoSolution(format!("no phase of the set can be evaluated at T = {t} K, p = {p} Pa"))
+            Error::NoSolution(format!(
+                "no phase of the set can be evaluated at T = {t} K, p = {p} Pa",
+                t = num(t),
+                p = num(p)
+            ))
         })?;
         Ok(StablePhase { stable, candidates: c })
     }
@@ -366,7 +372,8 @@ impl<'a, F: FluidModel + ?Sized> PurePhases<'a, F> {
             )
         } else {
             Error::NoSolution(format!(
-                "{a:?} and {b:?} do not coexist at T = {t} K within the models' ranges"
+                "{a:?} and {b:?} do not coexist at T = {t} K within the models' ranges",
+                t = num(t)
             ))
         })
     }
@@ -465,7 +472,8 @@ impl<'a, F: FluidModel + ?Sized> PurePhases<'a, F> {
             )
         } else {
             Error::NoSolution(format!(
-                "{a:?} and {b:?} do not coexist at p = {p} Pa within the models' ranges"
+                "{a:?} and {b:?} do not coexist at p = {p} Pa within the models' ranges",
+                p = num(p)
             ))
         })
     }

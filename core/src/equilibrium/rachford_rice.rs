@@ -7,7 +7,7 @@
 //! (1 + β(K−1) = K + (1−β)(1−K)); the idea of Nielsen & Lia, Fluid Phase Equilib. (2023),
 //! "Avoiding round-off error in the Rachford–Rice equation" (from memory).
 
-use crate::error::{Error, Result};
+use crate::error::{Error, Result, num};
 
 /// Solution of the Rachford–Rice equation.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -50,7 +50,7 @@ pub fn solve(z: &[f64], k: &[f64], negative: bool) -> Result<RrSolution> {
         if !(ki > 0.0 && ki.is_finite()) {
             return Err(Error::invalid(
                 "K-values",
-                format!("K = {ki}; finite positive values are required"),
+                format!("K = {ki}; finite positive values are required", ki = num(ki)),
             ));
         }
         kmin = kmin.min(ki);

@@ -12,11 +12,16 @@
 //! started from Wilson K-values refined by successive substitution (M. L. Michelsen,
 //! "Saturation point calculations", Fluid Phase Equilib. 23 (1985) 181–192, from memory).
 
-use crate::error::{Error, Result, check};
+use crate::error::{Error, Result, check, num};
 use crate::model::{FluidModel, FugacityWork, LnPhi, Need, RootChoice, ln_phi};
 use crate::numerics::linalg::lu_solve;
 use crate::substance::R;
 use serde::{Deserialize, Serialize};
+
+/// The lowest vapour pressure the pure-component solver computes, Pa: below it the
+/// coefficients of a cubic equation of state (A·B ∝ p²) underflow double precision.
+pub const P_FLOOR: f64 = 1e-100;
+const LN_P_FLOOR: f64 = -230.258_509_299_404_56; // ln(1e-100)
 
 /// Options of the saturation solvers.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
@@ -26,6 +31,20 @@ pub struct SaturationOptions {
     pub tolerance: f64,
     /// Maximum iterations.
     pub max_iterations: usize,
+}
+
+impl SaturationOptions {
+    /// Checks the options: tolerance in (0, 1e-2), at most [`crate::limits::MAX_ITERATIONS`]
+    /// iterations.
+    pub fn validate(&self) -> Result<()> {
+        if !(self.tolerance > 0.0 && self.tolerance < 1e-2) {
+            return Err(Error::invalid(
+                "tolerance",
+                format!("{}; a value in (0, 1e-2) is required", num(self.tolerance)),
+            ));
+        }
+        check::count("max_iterations", self.max_iterations, 1, crate::limits::MAX_ITERATIONS)
+    }
 }
 
 impl Default for SaturationOptions {
@@ -106,14 +125,16 @@ pub fn saturation_pressure<M: FluidModel + ?Sized>(
     i: usize,
     opts: &SaturationOptions,
 ) -> Result<SaturationPoint> {
+    opts.validate()?;
     check::temperature(t)?;
     let n = unit_amounts(model, i)?;
     let c = model.critical_constants(i);
     if t >= c.tc {
         return Err(Error::NoSolution(format!(
             "T = {t} K is at or above the critical temperature {} K of {}: no vapour–liquid saturation exists",
-            c.tc,
-            model.component_name(i)
+            num(c.tc),
+            model.component_name(i),
+            t = num(t)
         )));
     }
     let mut w = FugacityWork::new(n.len());
@@ -125,9 +146,20 @@ pub fn saturation_pressure<M: FluidModel + ?Sized>(
         lnp = hi - 1.0;
     }
     let mut resid = f64::INFINITY;
+    // The single roots last met on either side of the two-root window (m3), for the report
+    // of a state too close to the critical point to resolve.
+    let (mut v_above, mut v_below) = (f64::NAN, f64::NAN);
     for it in 1..=opts.max_iterations {
         let p = lnp.exp();
-        let roots = model.volume_roots(t, p, &n, &mut w.derivs)?;
+        let roots = model.volume_roots(t, p, &n, &mut w.derivs).map_err(|e| {
+            e.from_inside(
+                "pure-component vapour pressure",
+                t,
+                p,
+                vec![("Newton".into(), it)],
+                opts.tolerance,
+            )
+        })?;
         let next;
         if roots.count == 2 {
             ln_phi(model, t, p, &n, RootChoice::Liquid, Need::VALUES, &mut w, &mut liq)?;
@@ -159,10 +191,22 @@ pub fn saturation_pressure<M: FluidModel + ?Sized>(
             // One root: decide the side by the model's liquid-like rule.
             if model.is_liquid_like(t, roots.v[0], &n) {
                 hi = lnp;
+                v_above = roots.v[0];
             } else {
                 lo = lnp;
+                v_below = roots.v[0];
             }
             next = f64::NAN;
+        }
+        if hi <= LN_P_FLOOR {
+            return Err(Error::NoSolution(format!(
+                "the vapour pressure of {} at T = {} K lies below {} Pa, where the equation's \
+                 coefficients underflow double precision: no saturation state can be computed \
+                 at this temperature (raise T)",
+                model.component_name(i),
+                num(t),
+                num(P_FLOOR)
+            )));
         }
         let mut cand = next;
         if !(cand > lo && cand < hi) || !cand.is_finite() {
@@ -172,10 +216,32 @@ pub fn saturation_pressure<M: FluidModel + ?Sized>(
                 hi - 2.0_f64.max(hi - lnp + 1.0)
             };
         }
-        if (hi - lo).abs() < 1e-15 * hi.abs() {
+        if cand < LN_P_FLOOR {
+            cand = LN_P_FLOOR;
+        }
+        if (hi - lo).abs() < 1e-15 * hi.abs().max(1.0) {
             break;
         }
         lnp = cand;
+    }
+    if !resid.is_finite() && lo.is_finite() && v_above.is_finite() && v_below.is_finite() {
+        // Only one volume root on either side of a pressure interval narrower than double
+        // precision resolves: the window of two roots around p_sat has closed to rounding,
+        // as it does within about 1e-6 K of the equation's critical temperature.
+        let (vl, vv) = (v_above, v_below);
+        return Err(Error::NoSolution(format!(
+            "T = {} K is {} K below the critical temperature {} K of {}: too close to the critical \
+             point to resolve (or above the equation's own critical point, which its rounded \
+             constants shift slightly); the saturated phases are identical within a relative \
+             density difference of {} at p = {} Pa (pressure resolved to a relative {})",
+            num(t),
+            num(c.tc - t),
+            num(c.tc),
+            model.component_name(i),
+            num(((vv - vl) / vv).abs()),
+            num(lo.exp()),
+            num((hi - lo).abs())
+        )));
     }
     Err(Error::not_converged(
         "pure-component vapour pressure",
@@ -193,14 +259,24 @@ pub fn saturation_temperature<M: FluidModel + ?Sized>(
     i: usize,
     opts: &SaturationOptions,
 ) -> Result<SaturationPoint> {
+    opts.validate()?;
     check::pressure(p)?;
     let _ = unit_amounts(model, i)?;
     let c = model.critical_constants(i);
     if p >= c.pc {
         return Err(Error::NoSolution(format!(
             "p = {p} Pa is at or above the critical pressure {} Pa of {}: no vapour–liquid saturation exists",
-            c.pc,
-            model.component_name(i)
+            num(c.pc),
+            model.component_name(i),
+            p = num(p)
+        )));
+    }
+    if p < P_FLOOR {
+        return Err(Error::NoSolution(format!(
+            "p = {} Pa is below {} Pa, the lowest vapour pressure the solver computes (the \
+             equation's coefficients underflow double precision there)",
+            num(p),
+            num(P_FLOOR)
         )));
     }
     // Wilson/Lee–Kesler-type first guess, then Newton in 1/T with a bracket.
@@ -214,10 +290,21 @@ pub fn saturation_temperature<M: FluidModel + ?Sized>(
     for it in 1..=opts.max_iterations {
         let sat = match saturation_pressure(model, t, i, opts) {
             Ok(s) => s,
-            Err(e) if e.kind() == crate::ErrorKind::NotConverged && it < opts.max_iterations => {
+            Err(e)
+                if it < opts.max_iterations
+                    && (e.kind() == crate::ErrorKind::NotConverged
+                        || (e.kind() == crate::ErrorKind::NoSolution && t > 0.99 * c.tc)) =>
+            {
                 // Too close to the critical point for the inner solve: step back.
                 hi = t;
                 t = 0.5 * (lo.max(0.2 * c.tc) + hi);
+                continue;
+            }
+            Err(e) if e.kind() == crate::ErrorKind::NoSolution && t < 0.5 * c.tc && it < opts.max_iterations => {
+                // The vapour pressure at t lies below the solver's floor, and p above it:
+                // the boiling temperature lies higher.
+                lo = t;
+                t = 0.5 * (lo + hi);
                 continue;
             }
             Err(e) => return Err(e),
@@ -391,7 +478,8 @@ fn mixture_point<M: FluidModel + ?Sized>(
             // the unknown, then converge on the one of the requested kind.
             scan_for_point(model, kind, spec, n, opts).map_err(|scan| match scan {
                 Error::NoSolution(m) => Error::NoSolution(format!(
-                    "{e}; a search along the {} found: {m}",
+                    "{}; a search along the {} found: {m}",
+                    e.message(),
                     if kind.pressure_unknown() {
                         "pressure"
                     } else {
@@ -480,8 +568,9 @@ fn scan_for_point<M: FluidModel + ?Sized>(
                 let bubble_here = light.fraction < heavy.fraction;
                 let here = if bubble_here { "bubble" } else { "dew" };
                 found.push(format!(
-                    "a {here} point near {a:.6e} {}",
-                    if p_unknown { "Pa" } else { "K" }
+                    "a {here} point near {a} {}",
+                    if p_unknown { "Pa" } else { "K" },
+                    a = num(a)
                 ));
                 if bubble_here == kind.bubble() {
                     let lnk: Vec<f64> = (0..nc)
@@ -518,6 +607,7 @@ fn solve_point<M: FluidModel + ?Sized>(
     opts: &SaturationOptions,
     init: Option<(f64, Vec<f64>)>,
 ) -> Result<BubbleDew> {
+    opts.validate()?;
     let nc = model.num_components();
     let ntot = check::amounts(n, nc)?;
     let z: Vec<f64> = n.iter().map(|v| v / ntot).collect();
@@ -588,9 +678,11 @@ fn solve_point<M: FluidModel + ?Sized>(
     let mut newton = false;
     let no_point = |t: f64, p: f64| {
         Error::NoSolution(format!(
-            "no {} point: the iteration converged to the trivial solution K = 1 near T = {t:.6} K, p = {p:.6e} Pa \
+            "no {} point: the iteration converged to the trivial solution K = 1 near T = {t} K, p = {p} Pa \
              (the specification may lie beyond the mixture's cricondentherm or cricondenbar)",
-            if bubble { "bubble" } else { "dew" }
+            if bubble { "bubble" } else { "dew" },
+            t = num(t),
+            p = num(p)
         ))
     };
     for it in 0..opts.max_iterations {

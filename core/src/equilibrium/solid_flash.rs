@@ -23,7 +23,7 @@
 //! margins.
 
 use super::flash::{FlashContext, FlashOptions, FlashResult};
-use crate::error::{Error, Result, check};
+use crate::error::{Error, Result, check, num};
 use crate::model::FluidModel;
 use crate::model::solid::SolidModel;
 use serde::{Deserialize, Serialize};
@@ -468,7 +468,9 @@ fn solve_active<M: FluidModel + ?Sized>(
             if !bracketed {
                 return Err(Error::NoSolution(format!(
                     "the fluid cannot be brought to saturation with the solid of component {} at T = {t} K, p = {p} Pa",
-                    comps[a]
+                    comps[a],
+                    t = num(t),
+                    p = num(p)
                 )));
             }
             let mut side = 0;
@@ -572,7 +574,8 @@ pub fn frost_point_temperature<M: FluidModel + ?Sized>(
     if fb.signum() == fa.signum() {
         return Err(Error::NoSolution(format!(
             "no frost point of '{}' found near {t_guess} K at p = {p} Pa",
-            solid.model.species()
+            solid.model.species(),
+            p = num(p)
         )));
     }
     let tol = 1e-12;

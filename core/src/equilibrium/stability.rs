@@ -120,9 +120,15 @@ pub fn stability<M: FluidModel + ?Sized>(
     n: &[f64],
     opts: &StabilityOptions,
 ) -> Result<StabilityResult> {
+    check::temperature(t)?;
+    check::pressure(p)?;
+    check::amounts(n, model.num_components())?;
     let mut ws = EquilibriumWork::new(model.num_components());
     let mut res = StabilityResult::default();
-    stability_with(model, t, p, n, opts, &[], &mut ws, &mut res)?;
+    stability_with(model, t, p, n, opts, &[], &mut ws, &mut res).map_err(|e| {
+        let its = vec![("stability".into(), res.iterations)];
+        e.from_inside("stability test", t, p, its, opts.tolerance)
+    })?;
     Ok(res)
 }
 
@@ -192,6 +198,27 @@ pub(crate) fn stability_with<M: FluidModel + ?Sized>(
                 } else {
                     0.0
                 };
+            }
+            // Far from the components' critical temperatures the Wilson K-values under- or
+            // overflow (ln K of order −1000 at 1 K): scale the trial amounts in logarithms
+            // instead, which leaves its composition, and so the trial, unchanged.
+            let sw: f64 = ws.w.iter().sum();
+            if !(sw.is_normal() && sw < 1e300) && kind != Trial::Pure {
+                let f = match kind {
+                    Trial::Vapor => 1.0,
+                    Trial::Liquid => -1.0,
+                    Trial::VaporCube => 1.0 / 3.0,
+                    _ => -1.0 / 3.0,
+                };
+                let top = (0..nc)
+                    .filter(|&i| ws.sz[i] > 0.0)
+                    .map(|i| ws.sz[i].ln() + f * ws.lnk[i])
+                    .fold(f64::NEG_INFINITY, f64::max);
+                for i in 0..nc {
+                    if ws.sz[i] > 0.0 {
+                        ws.w[i] = (ws.sz[i].ln() + f * ws.lnk[i] - top).exp();
+                    }
+                }
             }
         } else {
             let e = extra_trials[k - trials];

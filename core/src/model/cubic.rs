@@ -17,7 +17,7 @@
 //! Phase Equilib. 8 (1982) 7–23.
 
 use super::{CriticalConstants, FluidModel, HelmholtzDerivs, MixCache, Need, VolumeRoots};
-use crate::error::{Error, Result, check};
+use crate::error::{Error, Result, check, num};
 use crate::numerics::roots::cubic_real_roots;
 use crate::substance::{Component, IdealGasSpecies, R};
 use serde::{Deserialize, Serialize};
@@ -74,7 +74,73 @@ impl CubicKind {
     }
 }
 
-/// Binary interaction parameters k_ij(T) = k0_ij + k1_ij·T (T in K), symmetric, zero diagonal.
+/// Largest |k_ij(T)| (dimensionless) at which a model is evaluated: above 1 the cross
+/// attraction a_ij = (1 − k_ij)·√(a_i a_j) changes sign and the mixture's attraction parameter
+/// can turn negative, which makes the equation meaningless; published fits lie well inside
+/// (common practice, no source).
+pub const KIJ_MAX: f64 = 1.0;
+
+/// Largest |k1| (1/K) of k_ij(T) = k0 + k1·T accepted: published temperature slopes are of
+/// order 1e-4 to 1e-3 1/K (common practice, no source); 0.01 1/K moves k_ij by 1 over 100 K.
+pub const KIJ_SLOPE_MAX: f64 = 0.01;
+
+/// The temperatures (K) at which |k0 + k1·T| <= [`KIJ_MAX`], as (min, max), or `None` if
+/// there are none above 0 K.
+pub fn kij_temperature_range(k0: f64, k1: f64) -> Option<(f64, f64)> {
+    let (lo, hi) = if k1 == 0.0 {
+        if k0.abs() <= KIJ_MAX {
+            (0.0, f64::INFINITY)
+        } else {
+            return None;
+        }
+    } else {
+        let a = (-KIJ_MAX - k0) / k1;
+        let b = (KIJ_MAX - k0) / k1;
+        (a.min(b).max(0.0), a.max(b))
+    };
+    (hi > lo).then_some((lo, hi))
+}
+
+fn check_pair(i: usize, j: usize, k0: f64, k1: f64) -> Result<()> {
+    if !(k0.is_finite() && k1.is_finite()) {
+        return Err(Error::invalid(
+            "k_ij",
+            format!(
+                "({i}, {j}): k0 = {}, k1 = {}; finite values are required",
+                num(k0),
+                num(k1)
+            ),
+        ));
+    }
+    if k1.abs() > KIJ_SLOPE_MAX {
+        return Err(Error::invalid(
+            "k_ij",
+            format!(
+                "({i}, {j}): k1 = {} 1/K; |k1| <= {} 1/K is required (k_ij(T) = k0 + k1·T)",
+                num(k1),
+                num(KIJ_SLOPE_MAX)
+            ),
+        ));
+    }
+    if kij_temperature_range(k0, k1).is_none() {
+        return Err(Error::invalid(
+            "k_ij",
+            format!(
+                "({i}, {j}): k0 = {}, k1 = {} 1/K give |k_ij(T)| > {} at every T > 0 K; \
+                 beyond it the cross attraction changes sign and the model is meaningless",
+                num(k0),
+                num(k1),
+                num(KIJ_MAX)
+            ),
+        ));
+    }
+    Ok(())
+}
+
+/// Binary interaction parameters k_ij(T) = k0_ij + k1_ij·T (T in K), symmetric, zero diagonal,
+/// with |k1| <= [`KIJ_SLOPE_MAX`] and |k_ij(T)| <= [`KIJ_MAX`] for some T > 0 (checked when
+/// set); a model evaluated at a T where |k_ij(T)| > [`KIJ_MAX`] reports
+/// [`Error::OutsideValidity`] with the temperature range of the pair.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct KijMatrix {
     /// Number of components.
@@ -109,12 +175,7 @@ impl KijMatrix {
                 "a component does not interact with itself (i == j)",
             ));
         }
-        if !(k0.is_finite() && k1.is_finite()) {
-            return Err(Error::invalid(
-                "k_ij",
-                format!("k0 = {k0}, k1 = {k1}; finite values are required"),
-            ));
-        }
+        check_pair(i, j, k0, k1)?;
         for (a, b) in [(i, j), (j, i)] {
             self.k0[a * self.nc + b] = k0;
             self.k1[a * self.nc + b] = k1;
@@ -138,6 +199,9 @@ impl KijMatrix {
                 }
                 if i == j && (self.k0[a] != 0.0 || self.k1[a] != 0.0) {
                     return Err(Error::invalid("k_ij", format!("diagonal ({i}, {i}) must be zero")));
+                }
+                if i != j {
+                    check_pair(i, j, self.k0[a], self.k1[a])?;
                 }
             }
         }
@@ -251,9 +315,11 @@ impl CubicEos {
         if components.is_empty() {
             return Err(Error::invalid("components", "at least one component is required"));
         }
+        check::count("components", components.len(), 1, crate::limits::MAX_COMPONENTS)?;
         for c in &components {
             c.validate()?;
         }
+        check::distinct(&components)?;
         let nc = components.len();
         let (oa, ob) = kind.omegas();
         let ac: Vec<f64> = components.iter().map(|c| oa * (R * c.tc).powi(2) / c.pc).collect();
@@ -429,7 +495,11 @@ impl CubicEos {
                 for j in 0..nc {
                     let idx = i * nc + j;
                     let k1 = if self.has_k1 { self.kij.k1[idx] } else { 0.0 };
-                    let omk = 1.0 - (self.kij.k0[idx] + k1 * t);
+                    let k = self.kij.k0[idx] + k1 * t;
+                    if k.abs() > KIJ_MAX {
+                        return Err(self.kij_outside(i, j, t));
+                    }
+                    let omk = 1.0 - k;
                     let q = r[i] * r[j];
                     a[idx] = omk * q;
                     if deriv {
@@ -443,6 +513,28 @@ impl CubicEos {
             cache.key = Some((self.id.0, t.to_bits(), deriv));
         }
         Ok(&cache.a)
+    }
+
+    fn kij_outside(&self, i: usize, j: usize, t: f64) -> Error {
+        let idx = i * self.b.len() + j;
+        let (k0, k1) = (self.kij.k0[idx], self.kij.k1[idx]);
+        let (min, max) = kij_temperature_range(k0, k1).unwrap_or((0.0, 0.0));
+        Error::OutsideValidity {
+            what: "temperature".into(),
+            value: t,
+            min,
+            max,
+            detail: format!(
+                "k_ij of {}–{} = {} + {}·T is {} there; |k_ij| <= {} is required, beyond it \
+                 the cross attraction changes sign and the cubic equation is meaningless",
+                self.components[i].name,
+                self.components[j].name,
+                num(k0),
+                num(k1),
+                num(k0 + k1 * t),
+                num(KIJ_MAX)
+            ),
+        }
     }
 
     /// D = ΣΣ n_i n_j a_ij and B = Σ n_i b_i, with D_i = 2Σ_j n_j a_ij written into `di`
@@ -588,7 +680,8 @@ impl FluidModel for CubicEos {
                 "volume",
                 format!(
                     "{v} m3 is at or below the co-volume limit of the equation ({} m3)",
-                    bm - c
+                    num(bm - c),
+                    v = num(v)
                 ),
             ));
         }
@@ -668,7 +761,11 @@ impl FluidModel for CubicEos {
         if !out.f.is_finite() || !out.f_v.is_finite() {
             return Err(Error::invalid(
                 "state",
-                format!("non-finite Helmholtz energy at T = {t} K, V = {v} m3"),
+                format!(
+                    "non-finite Helmholtz energy at T = {t} K, V = {v} m3",
+                    t = num(t),
+                    v = num(v)
+                ),
             ));
         }
         Ok(())
@@ -725,7 +822,9 @@ impl FluidModel for CubicEos {
         }
         if out.count == 0 {
             return Err(Error::NoSolution(format!(
-                "no physical volume root of the cubic equation at T = {t} K, p = {p} Pa"
+                "no physical volume root of the cubic equation at T = {t} K, p = {p} Pa",
+                t = num(t),
+                p = num(p)
             )));
         }
         Ok(out)

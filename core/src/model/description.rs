@@ -10,7 +10,7 @@
 //! ```
 
 use super::{CubicEos, CubicKind, KijMatrix, Model};
-use crate::error::{Error, Result};
+use crate::error::{Error, Result, num};
 use crate::substance::DataBank;
 use serde::{Deserialize, Serialize};
 
@@ -115,7 +115,10 @@ impl ModelDescription {
                         if x >= 0.0 && x.fract() == 0.0 && (x as usize) < nc {
                             Ok(x as usize)
                         } else {
-                            Err(Error::invalid("kij", format!("index {x} for {nc} components")))
+                            Err(Error::invalid(
+                                "kij",
+                                format!("index {x} for {nc} components", x = num(x)),
+                            ))
                         }
                     };
                     k.set(idx(row[0])?, idx(row[1])?, row[2], row.get(3).copied().unwrap_or(0.0))?;
@@ -144,7 +147,8 @@ impl ModelDescription {
 pub fn model_from_json(text: &str, bank: &DataBank) -> Result<Model> {
     match ModelDescription::from_json(text) {
         Ok(d) => d.build(bank),
-        Err(e1) => Model::from_json(text).map_err(|e2| Error::Data(format!("{e1}; as a full model: {e2}"))),
+        Err(e1) => Model::from_json(text)
+            .map_err(|e2| Error::Data(format!("{}; as a full model: {}", e1.message(), e2.message()))),
     }
 }
 

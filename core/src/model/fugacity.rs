@@ -7,7 +7,7 @@
 //! (∂ln φ_i/∂p)_{T,n} = v̄_i/(RT) − 1/p,  v̄_i = −(∂p/∂n_i)/(∂p/∂V).
 
 use super::{FluidModel, HelmholtzDerivs};
-use crate::error::{Error, Result, check};
+use crate::error::{Error, Result, check, num};
 use crate::substance::R;
 
 /// Which derivatives to compute beyond the values.
@@ -229,7 +229,12 @@ fn finish<M: FluidModel + ?Sized>(
     if !(z > 0.0) || !z.is_finite() {
         return Err(Error::invalid(
             "state",
-            format!("compressibility factor {z} at T = {t} K, p = {p} Pa"),
+            format!(
+                "compressibility factor {z} at T = {t} K, p = {p} Pa",
+                z = num(z),
+                t = num(t),
+                p = num(p)
+            ),
         ));
     }
     let lnz = z.ln();
@@ -269,7 +274,11 @@ fn finish<M: FluidModel + ?Sized>(
     if !g.is_finite() {
         return Err(Error::invalid(
             "state",
-            format!("non-finite fugacity coefficients at T = {t} K, p = {p} Pa"),
+            format!(
+                "non-finite fugacity coefficients at T = {t} K, p = {p} Pa",
+                t = num(t),
+                p = num(p)
+            ),
         ));
     }
     Ok(())

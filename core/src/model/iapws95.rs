@@ -53,7 +53,7 @@
 
 use super::fugacity::RootChoice;
 use super::{CriticalConstants, FluidModel, HelmholtzDerivs, Need, VolumeRoots};
-use crate::error::{Error, Result, check};
+use crate::error::{Error, Result, check, num};
 use crate::substance::{IdealGasSpecies, P_STANDARD, R, T_REFERENCE};
 use serde::{Deserialize, Serialize};
 use std::sync::OnceLock;
@@ -420,7 +420,7 @@ fn check_td(t: f64, rho: f64) -> Result<()> {
     if !(rho.is_finite() && rho > 0.0) {
         return Err(Error::invalid(
             "density",
-            format!("{rho} kg/m3; a finite value > 0 is required"),
+            format!("{rho} kg/m3; a finite value > 0 is required", rho = num(rho)),
         ));
     }
     if rho > RHO_MAX {
@@ -526,7 +526,9 @@ impl Iapws95 {
         if !(r.dd.is_finite() && r.tt.is_finite() && r.dt.is_finite()) {
             return Err(Error::NoSolution(format!(
                 "T = {t} K, ρ = {rho} kg/m3 is the critical point of IAPWS-95, where the heat \
-                 capacities diverge and the speed of sound vanishes"
+                 capacities diverge and the speed of sound vanishes",
+                t = num(t),
+                rho = num(rho)
             )));
         }
         let rt = R_SPECIFIC * t;
@@ -544,7 +546,9 @@ impl Iapws95 {
         if !(a2 > 0.0) || !(ctt > 0.0) {
             return Err(Error::NoSolution(format!(
                 "T = {t} K, ρ = {rho} kg/m3 is inside the spinodal of IAPWS-95 \
-                 (mechanically or thermally unstable: (∂p/∂ρ)_T/(RT) = {a2}, c_v/R = {ctt})"
+                 (mechanically or thermally unstable: (∂p/∂ρ)_T/(RT) = {a2}, c_v/R = {ctt})",
+                t = num(t),
+                rho = num(rho)
             )));
         }
         let cp = cv + R_SPECIFIC * a3 * a3 / a2;
@@ -582,7 +586,9 @@ impl Iapws95 {
         .any(|x| !x.is_finite())
         {
             return Err(Error::NoSolution(format!(
-                "non-finite IAPWS-95 properties at T = {t} K, ρ = {rho} kg/m3"
+                "non-finite IAPWS-95 properties at T = {t} K, ρ = {rho} kg/m3",
+                t = num(t),
+                rho = num(rho)
             )));
         }
         Ok(out)
@@ -618,7 +624,9 @@ impl Iapws95 {
                 Ok(if gl <= gv { l } else { v })
             }
             (_, (None, None)) => Err(Error::NoSolution(format!(
-                "no IAPWS-95 density root at T = {t} K, p = {p} Pa"
+                "no IAPWS-95 density root at T = {t} K, p = {p} Pa",
+                t = num(t),
+                p = num(p)
             ))),
         }
     }
@@ -759,7 +767,11 @@ impl Iapws95 {
                 RHO_MAX,
                 0.0,
                 RHO_MAX,
-                &format!("p = {p} Pa at T = {t} K needs a density above the evaluation limit"),
+                &format!(
+                    "p = {p} Pa at T = {t} K needs a density above the evaluation limit",
+                    p = num(p),
+                    t = num(t)
+                ),
             ));
         }
         let mut x = (p / (R_SPECIFIC * t)).min(0.5 * RHO_MAX);
@@ -834,7 +846,8 @@ impl Iapws95 {
         }
         if t >= TC {
             return Err(Error::NoSolution(format!(
-                "T = {t} K is at or above the critical temperature {TC} K: no vapour–liquid saturation"
+                "T = {t} K is at or above the critical temperature {TC} K: no vapour–liquid saturation",
+                t = num(t)
             )));
         }
         let tau = TC / t;
@@ -939,7 +952,8 @@ impl Iapws95 {
         }
         if p >= PC {
             return Err(Error::NoSolution(format!(
-                "p = {p} Pa is at or above the critical pressure {PC} Pa: no vapour–liquid saturation"
+                "p = {p} Pa is at or above the critical pressure {PC} Pa: no vapour–liquid saturation",
+                p = num(p)
             )));
         }
         let mut t = crate::model::if97::saturation_temperature(p.max(crate::model::if97::P_MIN))
@@ -1019,7 +1033,9 @@ impl FluidModel for Iapws95 {
         if !(r.dd.is_finite() && r.tt.is_finite() && r.dt.is_finite()) {
             return Err(Error::NoSolution(format!(
                 "T = {t} K, V = {v} m3 for {ntot} mol is the critical point of IAPWS-95, where \
-                 second derivatives of the Helmholtz energy diverge"
+                 second derivatives of the Helmholtz energy diverge",
+                t = num(t),
+                v = num(v)
             )));
         }
         // F = r·n·φ^r + (r − 1)·n·ln δ (see the module docs), δ = nM/(Vρc), τ = Tc/T.
@@ -1042,7 +1058,9 @@ impl FluidModel for Iapws95 {
         }
         if !out.f.is_finite() || !out.f_v.is_finite() || !out.f_vv.is_finite() {
             return Err(Error::NoSolution(format!(
-                "non-finite IAPWS-95 Helmholtz energy at T = {t} K, V = {v} m3"
+                "non-finite IAPWS-95 Helmholtz energy at T = {t} K, V = {v} m3",
+                t = num(t),
+                v = num(v)
             )));
         }
         Ok(())
@@ -1059,7 +1077,9 @@ impl FluidModel for Iapws95 {
         }
         if out.count == 0 {
             return Err(Error::NoSolution(format!(
-                "no IAPWS-95 density root at T = {t} K, p = {p} Pa"
+                "no IAPWS-95 density root at T = {t} K, p = {p} Pa",
+                t = num(t),
+                p = num(p)
             )));
         }
         // Ascending volume: the liquid (dense) root first.

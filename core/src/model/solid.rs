@@ -11,7 +11,7 @@ use super::FluidModel;
 use super::fugacity::RootChoice;
 use super::iapws95;
 use super::state::PhaseState;
-use crate::error::{Error, Result, check};
+use crate::error::{Error, Result, check, num};
 use crate::substance::{P_STANDARD, R};
 use serde::{Deserialize, Serialize};
 
@@ -303,7 +303,9 @@ impl IceIh {
         };
         if [g, g_t, g_p, g_tt, g_tp, g_pp].iter().any(|x| !x.is_finite()) {
             return Err(Error::NoSolution(format!(
-                "non-finite IAPWS-06 Gibbs energy at T = {t} K, p = {p} Pa"
+                "non-finite IAPWS-06 Gibbs energy at T = {t} K, p = {p} Pa",
+                t = num(t),
+                p = num(p)
             )));
         }
         Ok(out)
@@ -430,7 +432,10 @@ impl FusionData {
         ];
         for (what, v) in pos {
             if !(v.is_finite() && v > 0.0) {
-                return Err(Error::invalid(what, format!("{v}; a finite value > 0 is required")));
+                return Err(Error::invalid(
+                    what,
+                    format!("{v}; a finite value > 0 is required", v = num(v)),
+                ));
             }
         }
         if !self.delta_cp.is_finite() {
@@ -441,7 +446,9 @@ impl FusionData {
                 "t_min, t_max",
                 format!(
                     "[{}, {}] K must contain the triple point {} K",
-                    self.t_min, self.t_max, self.t_triple
+                    num(self.t_min),
+                    num(self.t_max),
+                    num(self.t_triple)
                 ),
             ));
         }

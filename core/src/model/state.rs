@@ -2,7 +2,7 @@
 
 use super::FluidModel;
 use super::fugacity::{FugacityWork, LnPhi, Need, RootChoice, evaluate_at_volume, ln_phi};
-use crate::error::{Error, Result, check};
+use crate::error::{Error, Result, check, num};
 use crate::substance::{P_STANDARD, R};
 use serde::{Deserialize, Serialize};
 
@@ -200,7 +200,9 @@ impl PhaseState {
         let w2 = -v * v / mass * (cp / cv) * p_v;
         if !(w2 > 0.0) || !(cv > 0.0) {
             return Err(Error::NoSolution(format!(
-                "the phase at T = {t} K, p = {p} Pa is mechanically or thermally unstable (cv = {cv} J/K, w² = {w2} m²/s²)"
+                "the phase at T = {t} K, p = {p} Pa is mechanically or thermally unstable (cv = {cv} J/K, w² = {w2} m²/s²)",
+                t = num(t),
+                p = num(p)
             )));
         }
         let props = Properties {

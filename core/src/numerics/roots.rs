@@ -2,6 +2,13 @@
 
 /// Real roots of x³ + a x² + b x + c = 0, ascending, each polished by Newton steps.
 /// Returns the roots in the first `count` entries of the array.
+///
+/// The root of largest magnitude comes from Cardano's formula or the trigonometric form, is
+/// polished, and the other two follow from the deflated quadratic with Vieta's sum and
+/// product (stable form), the sum from the coefficient of x. Closed forms alone lose small roots next to a large one (a cubic of
+/// state at very low pressure: Z ≈ 1 and two roots of order 1e-10, which they give with an
+/// absolute error of 1e-16 and a wrong count when the discriminant is rounding noise); the
+/// deflation keeps their relative accuracy.
 pub fn cubic_real_roots(a: f64, b: f64, c: f64) -> ([f64; 3], usize) {
     // Depressed cubic t³ + p t + q = 0 with x = t − a/3.
     let a3 = a / 3.0;
@@ -32,22 +39,56 @@ pub fn cubic_real_roots(a: f64, b: f64, c: f64) -> ([f64; 3], usize) {
         }
         count = 3;
     }
-    for x in r.iter_mut().take(count) {
-        for _ in 0..3 {
-            let f = ((*x + a) * *x + b) * *x + c;
-            let df = (3.0 * *x + 2.0 * a) * *x + b;
-            if df == 0.0 {
-                break;
+    // The root of largest magnitude, polished, then the deflated quadratic.
+    let big = (0..count)
+        .max_by(|&i, &j| r[i].abs().total_cmp(&r[j].abs()))
+        .unwrap_or(0);
+    let mut x = r[big];
+    polish(&mut x, a, b, c, 8);
+    if x != 0.0 && x.is_finite() {
+        // Product and sum of the other two roots. The sum from x·(sum) + prod = b rather
+        // than from −a − x, which cancels when the other roots are below 1e-16·|x|.
+        let prod = -c / x;
+        let s = (b - prod) / x;
+        let dq = s * s - 4.0 * prod;
+        if prod.is_finite() && dq >= 0.0 {
+            let t1 = 0.5 * (s + if s < 0.0 { -dq.sqrt() } else { dq.sqrt() });
+            let t2 = if t1 != 0.0 { prod / t1 } else { 0.0 };
+            let mut out = [x, t1, t2];
+            for y in out.iter_mut().skip(1) {
+                polish(y, a, b, c, 8);
             }
-            let dx = f / df;
-            *x -= dx;
-            if dx.abs() <= 1e-16 * x.abs() {
-                break;
-            }
+            out.sort_by(|u, v| u.total_cmp(v));
+            return (out, 3);
+        } else if count == 1 || dq < 0.0 {
+            return ([x, 0.0, 0.0], 1);
         }
+    }
+    for x in r.iter_mut().take(count) {
+        polish(x, a, b, c, 3);
     }
     r[..count].sort_by(|x, y| x.total_cmp(y));
     (r, count)
+}
+
+/// Newton steps on x³ + a x² + b x + c at `x`, at most `max`, until the step is below
+/// 1e-16·|x|; a step that would not be finite is not taken.
+fn polish(x: &mut f64, a: f64, b: f64, c: f64, max: usize) {
+    for _ in 0..max {
+        let f = ((*x + a) * *x + b) * *x + c;
+        let df = (3.0 * *x + 2.0 * a) * *x + b;
+        if df == 0.0 {
+            break;
+        }
+        let dx = f / df;
+        if !dx.is_finite() {
+            break;
+        }
+        *x -= dx;
+        if dx.abs() <= 1e-16 * x.abs() {
+            break;
+        }
+    }
 }
 
 /// Finds a root of `f` in the bracket [lo, hi] (f(lo) and f(hi) of opposite sign) by
@@ -124,6 +165,28 @@ mod tests {
         let (r, n) = cubic_real_roots(-2.0, 1.0, -2.0);
         assert_eq!(n, 1);
         assert!((r[0] - 2.0).abs() < 1e-14);
+    }
+
+    #[test]
+    fn cubic_small_roots_beside_a_large_one() {
+        // (x − 1)(x − s1)(x − s2) with s1, s2 tiny: the shape of a cubic of state at very low
+        // pressure. Both small roots keep their relative accuracy and the count is 3.
+        for (s1, s2) in [
+            (1e-8, 1e-10),
+            (7e-9, 1.5e-10),
+            (1e-12, 3e-14),
+            (2e-6, 1.9e-6),
+            (1e-17, 1e-19),
+        ] {
+            let a = -(1.0 + s1 + s2);
+            let b = s1 + s2 + s1 * s2;
+            let c = -s1 * s2;
+            let (r, n) = cubic_real_roots(a, b, c);
+            assert_eq!(n, 3, "{s1} {s2}");
+            assert!((r[0] - s2).abs() < 1e-9 * s2, "{} vs {s2}", r[0]);
+            assert!((r[1] - s1).abs() < 1e-9 * s1, "{} vs {s1}", r[1]);
+            assert!((r[2] - 1.0).abs() < 1e-14);
+        }
     }
 
     #[test]

@@ -22,8 +22,6 @@ pub struct Reference {
 struct BankFile {
     #[serde(default)]
     references: BTreeMap<String, Reference>,
-    #[serde(default)]
-    component: Vec<Component>,
 }
 
 /// A set of components with their references, searchable by name, alias or CAS number.
@@ -82,15 +80,101 @@ impl DataBank {
     /// Every component must be valid ([`Component::validate`]), every sourced field must name
     /// a reference key present in the file's `[references]` table, and no name, alias or CAS
     /// number may be used twice.
+    ///
+    /// Errors say where: a component that cannot be read or is invalid is reported with its
+    /// index in the file, its name (when it has one) and the line of the offending field (or
+    /// of its `[[component]]` header when the field is missing). Required fields: `name`,
+    /// `formula`, `cas`, `molar_mass`, `tc`, `pc`, `acentric`, `vc`, `hf298`, `gf298`,
+    /// `elements`, `cp` (`form`, `coefficients`, `t_min`, `t_max`) and `sources`; optional:
+    /// `aliases`, `tb`.
     pub fn from_toml_str(text: &str) -> Result<DataBank> {
-        let file: BankFile = toml::from_str(text).map_err(|e| Error::Data(format!("component file: {e}")))?;
+        let mut table: toml::Table = text.parse().map_err(|e| Error::Data(format!("component file: {e}")))?;
+        let comps = table.remove("component");
+        let file: BankFile = toml::Value::Table(table)
+            .try_into()
+            .map_err(|e| Error::Data(format!("component file: {e}")))?;
         let mut bank = DataBank {
             references: file.references,
             components: Vec::new(),
             index: HashMap::new(),
         };
-        for c in file.component {
-            bank.add(c)?;
+        let comps = match comps {
+            None => Vec::new(),
+            Some(toml::Value::Array(a)) => a,
+            Some(_) => {
+                return Err(Error::Data(
+                    "component file: 'component' must be an array of tables ([[component]])".into(),
+                ));
+            }
+        };
+        let headers: Vec<usize> = text
+            .lines()
+            .enumerate()
+            .filter(|(_, l)| l.trim_start().starts_with("[[component]]"))
+            .map(|(i, _)| i)
+            .collect();
+        for (k, value) in comps.into_iter().enumerate() {
+            let name = value.get("name").and_then(|v| v.as_str()).map(str::to_string);
+            let start = headers.get(k).copied();
+            let end = headers.get(k + 1).copied().unwrap_or(usize::MAX);
+            let locate = |msg: String| -> Error {
+                // The line of the field the message names, else the component's header.
+                let field = [
+                    "molar_mass",
+                    "tc",
+                    "pc",
+                    "acentric",
+                    "vc",
+                    "tb",
+                    "hf298",
+                    "gf298",
+                    "cp",
+                    "name",
+                    "cas",
+                ]
+                .into_iter()
+                .find(|f| {
+                    msg.contains(&format!("{f} =")) || msg.contains(&format!("`{f}`")) || msg.contains(&format!("{f}:"))
+                });
+                let line = start.map(|s| {
+                    field
+                        .and_then(|f| {
+                            text.lines()
+                                .enumerate()
+                                .skip(s)
+                                .take(end.saturating_sub(s))
+                                .find(|(_, l)| {
+                                    let l = l.trim_start();
+                                    l.starts_with(f) && l[f.len()..].trim_start().starts_with(['=', '.'])
+                                })
+                                .map(|(i, _)| i)
+                        })
+                        .unwrap_or(s)
+                        + 1
+                });
+                let who = match &name {
+                    Some(n) => format!("component {k} ('{n}')"),
+                    None => format!("component {k} (no name)"),
+                };
+                let at = line.map(|l| format!(", line {l}")).unwrap_or_default();
+                let msg = msg
+                    .strip_prefix(&format!("component '{}': ", name.clone().unwrap_or_default()))
+                    .unwrap_or(&msg)
+                    .to_string();
+                Error::Data(format!("component file: {who}{at}: {msg}"))
+            };
+            // A value of the wrong type: name the first numeric field that is not a number.
+            let wrong_type = ["molar_mass", "tc", "pc", "acentric", "vc", "tb", "hf298", "gf298"]
+                .into_iter()
+                .find(|f| value.get(*f).is_some_and(|v| !(v.is_float() || v.is_integer())));
+            let c: Component = value.try_into().map_err(|e: toml::de::Error| {
+                let msg = e.message().to_string();
+                match wrong_type {
+                    Some(f) if msg.contains("invalid type") => locate(format!("{f}: {msg}")),
+                    _ => locate(msg),
+                }
+            })?;
+            bank.add(c).map_err(|e| locate(e.message()))?;
         }
         Ok(bank)
     }
@@ -161,9 +245,29 @@ impl DataBank {
             .ok_or_else(|| self.unknown(key))
     }
 
-    /// Looks several components up at once, in order.
+    /// Looks several components up at once, in order. Two keys that name the same component
+    /// (the same name twice, or a name and its alias or CAS number, e.g. "methane" and "CH4")
+    /// are refused with [`Error::InvalidInput`]: a model has each component once.
     pub fn get_many<S: AsRef<str>>(&self, keys: &[S]) -> Result<Vec<Component>> {
-        keys.iter().map(|k| self.get(k.as_ref()).cloned()).collect()
+        crate::error::check::count("components", keys.len(), 1, crate::limits::MAX_COMPONENTS)?;
+        let mut ids: Vec<usize> = Vec::with_capacity(keys.len());
+        for (pos, k) in keys.iter().enumerate() {
+            let k = k.as_ref();
+            let id = *self.index.get(&normalise(k)).ok_or_else(|| self.unknown(k))?;
+            if let Some(first) = ids.iter().position(|&other| other == id) {
+                return Err(Error::invalid(
+                    "components",
+                    format!(
+                        "'{k}' (position {pos}) names '{}', already given as '{}' (position {first}); \
+                         each component may appear once",
+                        self.components[id].name,
+                        keys[first].as_ref()
+                    ),
+                ));
+            }
+            ids.push(id);
+        }
+        Ok(ids.into_iter().map(|i| self.components[i].clone()).collect())
     }
 
     fn unknown(&self, key: &str) -> Error {
@@ -346,6 +450,49 @@ mod tests {
                 .to_string()
                 .contains("names both")
         );
+    }
+
+    #[test]
+    fn file_errors_say_where() {
+        let good = r#"[references.mine]
+citation = "Invented for this test"
+[[component]]
+name = "testane"
+formula = "C9H20"
+cas = "0-00-0"
+molar_mass = 0.128
+tc = 594.6
+pc = 22.9e5
+acentric = 0.44
+vc = 548e-6
+hf298 = -228.0e3
+gf298 = 25.0e3
+elements = { C = 9, H = 20 }
+cp = { form = "poly4", coefficients = [4.0, 0.09, 0.0, 0.0, 0.0], t_min = 200.0, t_max = 1000.0 }
+sources = { molar_mass = "mine", tc = "mine", pc = "mine", acentric = "mine", vc = "mine", hf298 = "mine", gf298 = "mine", cp = "mine" }
+"#;
+        let err = |text: &str| DataBank::from_toml_str(text).unwrap_err().to_string();
+        // A missing field: the component and its header line.
+        let e = err(&good.replace("pc = 22.9e5\n", ""));
+        assert!(e.contains("component 0 ('testane'), line 3") && e.contains("pc"), "{e}");
+        // Negative and NaN critical constants: the line of the field.
+        let e = err(&good.replace("tc = 594.6", "tc = -594.6"));
+        assert!(e.contains("component 0 ('testane'), line 8: tc = -594.6"), "{e}");
+        let e = err(&good.replace("pc = 22.9e5", "pc = nan"));
+        assert!(e.contains("line 9: pc = NaN"), "{e}");
+        // A cp range that is empty.
+        let e = err(&good.replace("t_min = 200.0, t_max = 1000.0", "t_min = 900.0, t_max = 300.0"));
+        assert!(e.contains("line 15") && e.contains("t_min < t_max"), "{e}");
+        // A duplicate name: the second component, at its header.
+        let dup = format!("{good}{}", &good[good.find("[[component]]").unwrap()..]);
+        let e = err(&dup);
+        assert!(
+            e.contains("component 1 ('testane'), line 17") && e.contains("names both"),
+            "{e}"
+        );
+        // A field of the wrong type.
+        let e = err(&good.replace("tc = 594.6", "tc = \"hot\""));
+        assert!(e.contains("component 0 ('testane')") && e.contains("line 8"), "{e}");
     }
 
     #[test]

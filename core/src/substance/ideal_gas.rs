@@ -55,13 +55,17 @@ impl CpCorrelation {
             || !(self.t_min > 0.0 && self.t_max > self.t_min)
         {
             return Err(Error::Data(format!(
-                "component '{name}': cp correlation has non-finite coefficients or an empty range"
+                "component '{name}': cp: the coefficients must be finite and t_min < t_max with \
+                 t_min > 0 K (t_min = {}, t_max = {})",
+                crate::error::num(self.t_min),
+                crate::error::num(self.t_max)
             )));
         }
         if !(self.t_min <= T_REFERENCE && T_REFERENCE <= self.t_max) {
             return Err(Error::Data(format!(
                 "component '{name}': cp range [{}, {}] K must include 298.15 K",
-                self.t_min, self.t_max
+                crate::error::num(self.t_min),
+                crate::error::num(self.t_max)
             )));
         }
         Ok(())

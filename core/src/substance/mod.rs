@@ -17,7 +17,7 @@ pub use bank::{DataBank, Reference};
 pub use ideal_gas::{CpCorrelation, CpForm};
 pub use species::{CpRange, Species, SpeciesBank, SpeciesPhase, StandardState};
 
-use crate::error::{Error, Result};
+use crate::error::{Error, Result, num};
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
 
@@ -79,7 +79,8 @@ impl Component {
         let bad = |what: &str, v: f64, allowed: &str| {
             Err(Error::Data(format!(
                 "component '{}': {what} = {v} ({allowed})",
-                self.name
+                self.name,
+                v = num(v)
             )))
         };
         for (what, v) in [

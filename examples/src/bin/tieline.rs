@@ -22,7 +22,13 @@ use tieline_examples::{
 #[command(
     name = "tieline",
     version,
-    about = "Phase equilibrium of real fluids by Gibbs-energy minimisation"
+    about = "Phase equilibrium of real fluids by Gibbs-energy minimisation",
+    after_help = "Errors: a message on stderr and exit status 2 (also for a malformed command line). \
+With --json, errors are a JSON object on stdout instead, with the same exit status: \
+{\"error\": {\"kind\": \"invalid_input\" | \"unknown_component\" | \"outside_validity\" | \
+\"no_solution\" | \"not_converged\" | \"data\" | \"usage\", \"message\": \"...\", \
+\"argument\": \"temperature\" or null}}. Numbers may be written nan, inf or 1e999; each is \
+refused as not a finite number."
 )]
 struct Cli {
     #[command(subcommand)]
@@ -558,12 +564,57 @@ fn point(a: PointArgs, bubble: bool, sopts: &SaturationOptions) -> Result<String
     }
 }
 
+/// The stable snake_case name of an error kind, as written in `--json` errors.
+fn kind_name(k: tieline::ErrorKind) -> &'static str {
+    use tieline::ErrorKind as K;
+    match k {
+        K::InvalidInput => "invalid_input",
+        K::UnknownComponent => "unknown_component",
+        K::OutsideValidity => "outside_validity",
+        K::NoSolution => "no_solution",
+        K::NotConverged => "not_converged",
+        K::Data => "data",
+        _ => "other",
+    }
+}
+
+/// The `--json` form of an error: `{"error": {"kind", "message", "argument"}}`.
+fn json_error(kind: &str, message: &str, argument: Option<&str>) -> String {
+    serde_json::to_string_pretty(&json!({"error": {"kind": kind, "message": message, "argument": argument}}))
+        .unwrap_or_default()
+}
+
 fn main() {
-    let cli = Cli::parse();
+    let json_out = std::env::args().any(|a| a == "--json");
+    let cli = match Cli::try_parse() {
+        Ok(c) => c,
+        Err(e) if json_out && e.use_stderr() => {
+            let text = e.to_string();
+            let first = text
+                .lines()
+                .next()
+                .unwrap_or("")
+                .trim_start_matches("error: ")
+                .to_string();
+            println!("{}", json_error("usage", &first, None));
+            std::process::exit(2);
+        }
+        Err(e) => e.exit(),
+    };
     match run(cli) {
         Ok(s) => print!("{s}"),
         Err(err) => {
-            eprintln!("error ({}): {err}", err.kind());
+            if json_out {
+                let argument = match &err {
+                    Error::InvalidInput { what, .. } => Some(what.as_str()),
+                    Error::UnknownComponent { .. } => Some("components"),
+                    Error::OutsideValidity { what, .. } => Some(what.as_str()),
+                    _ => None,
+                };
+                println!("{}", json_error(kind_name(err.kind()), &err.to_string(), argument));
+            } else {
+                eprintln!("error: {err}");
+            }
             std::process::exit(2);
         }
     }

@@ -83,7 +83,7 @@ def _scalar(x: Any, what: str) -> float:
 
 def _array(x: Any, what: str) -> np.ndarray:
     if isinstance(x, (bool, np.bool_, str, bytes)):
-        raise _invalid(what, f"{x!r}; numbers are required")
+        raise _invalid(what, f"{_show(x)}; numbers are required")
     try:
         a = np.asarray(x)
     except (TypeError, ValueError):
@@ -113,12 +113,33 @@ def _on_error(on_error: str) -> bool:
     raise _invalid("on_error", f"{on_error!r}; \"raise\" or \"flag\" is required")
 
 
+def _show(x: Any) -> str:
+    """A value for a message: repr, with a huge integer in the core's compact number form."""
+    r = repr(x)
+    if isinstance(x, numbers.Integral) and not isinstance(x, bool) and len(r) > 24:
+        return _core.format_number(float(x))
+    return r
+
+
+def _count(what: str, value: Any, lo: int, hi: int, note: str = "") -> int:
+    """An integer argument in [lo, hi] (a documented limit of the core), checked before it
+    reaches the compiled code, so that a bool, a float, a str, a negative or an enormous value
+    is an InvalidInputError naming the argument and the range, never a TypeError or an
+    OverflowError of the conversion."""
+    if isinstance(value, bool) or not isinstance(value, numbers.Integral) or not lo <= int(value) <= hi:
+        shown = _show(value) if isinstance(value, numbers.Integral) and not isinstance(value, bool) else type(value).__name__
+        raise _invalid(what, f"{shown}; an integer from {lo} to {hi}{note} is required")
+    return int(value)
+
+
 def _check_threads(threads: Optional[int]) -> Optional[int]:
     if threads is None:
         return None
-    if isinstance(threads, bool) or not isinstance(threads, numbers.Integral) or threads < 0:
-        raise _invalid("threads", f"{threads!r}; an integer >= 0 (0: one per core) is required")
-    return int(threads)
+    return _count("threads", threads, 0, _core.MAX_THREADS, " (0: one per core)")
+
+
+def _check_iterations(what: str, n: Optional[int], lo: int = 0) -> Optional[int]:
+    return None if n is None else _count(what, n, lo, _core.MAX_ITERATIONS)
 
 
 def _check_progress(progress: Optional[Progress]) -> Optional[Progress]:
@@ -172,9 +193,15 @@ def _flash_options(
     max_phases: int = 2,
 ) -> _core.FlashOptions:
     if isinstance(max_phases, bool) or not isinstance(max_phases, numbers.Integral) or max_phases not in (2, 3):
-        raise _invalid("max_phases", f"{max_phases!r}; 2 or 3 is required")
+        raise _invalid("max_phases", f"{_show(max_phases)}; 2 or 3 is required")
     return _core.FlashOptions(
-        tolerance, max_ss_iterations, max_newton_iterations, certificate, negative_flash, None, int(max_phases)
+        tolerance,
+        _check_iterations("max_ss_iterations", max_ss_iterations),
+        _check_iterations("max_newton_iterations", max_newton_iterations),
+        certificate,
+        negative_flash,
+        None,
+        int(max_phases),
     )
 
 
@@ -286,6 +313,8 @@ def flash(
         The solver did not converge (its diagnostics are attributes of the exception).
     """
     _check_model(model)
+    _check_threads(threads)
+    block = _count("block", block, 1, _core.MAX_POINTS)
     opts = _flash_options(
         tolerance, max_ss_iterations, max_newton_iterations, bool(certificate), bool(negative_flash), max_phases
     )
@@ -296,8 +325,6 @@ def flash(
             return _core.flash_point(
                 model, _scalar(temperature, "temperature"), _scalar(pressure, "pressure"), z, opts
             )
-    if isinstance(block, bool) or not isinstance(block, numbers.Integral) or block < 1:
-        raise _invalid("block", f"{block!r}; an integer >= 1 is required")
     raise_errors = _on_error(on_error)
     shape, (t, p), zf, stored = _broadcast(model, feed, (temperature, "temperature"), (pressure, "pressure"))
     raw = _core.flash_sweep(
@@ -386,9 +413,12 @@ def _saturation(
     on_error: str,
 ) -> Union[SaturationPoint, SaturationCurve]:
     _check_model(model)
+    _check_threads(threads)
     i = _component(model, component)
     if _is_scalar(values):
-        return _core.saturation_point(model, by, _scalar(values, by), i, tolerance, max_iterations)
+        return _core.saturation_point(
+            model, by, _scalar(values, by), i, tolerance, _check_iterations("max_iterations", max_iterations, 1)
+        )
     raise_errors = _on_error(on_error)
     a = _array(values, by)
     shape = a.shape
@@ -398,7 +428,7 @@ def _saturation(
         np.ascontiguousarray(a).reshape(-1),
         i,
         tolerance,
-        max_iterations,
+        _check_iterations("max_iterations", max_iterations, 1),
         _check_threads(threads),
         _check_progress(progress),
         raise_errors,
@@ -475,14 +505,25 @@ def _bubble_dew(
     on_error: str,
 ) -> Union[BubbleDewPoint, BubbleDewCurve]:
     _check_model(model)
+    _check_threads(threads)
     if _is_scalar(values):
         z = _feed(model, feed)
         if z.ndim == 1:
-            return _core.bubble_dew_point(model, which, _scalar(values, coordinate), z, tolerance, max_iterations)
+            return _core.bubble_dew_point(
+                model, which, _scalar(values, coordinate), z, tolerance, _check_iterations("max_iterations", max_iterations, 1)
+            )
     raise_errors = _on_error(on_error)
     shape, (v,), zf, _ = _broadcast(model, feed, (values, coordinate))
     raw = _core.bubble_dew_sweep(
-        model, which, v, zf, tolerance, max_iterations, _check_threads(threads), _check_progress(progress), raise_errors
+        model,
+        which,
+        v,
+        zf,
+        tolerance,
+        _check_iterations("max_iterations", max_iterations, 1),
+        _check_threads(threads),
+        _check_progress(progress),
+        raise_errors,
     )
     nc = model.num_components
     return BubbleDewCurve(
@@ -871,10 +912,7 @@ def water_saturation(
 
 def set_threads(n: int) -> None:
     """Sets the default number of threads of vectorised calls (0: one per core)."""
-    checked = _check_threads(n)
-    if checked is None:
-        raise _invalid("threads", "None; an integer >= 0 is required")
-    _core.set_threads(checked)
+    _core.set_threads(_count("threads", n, 0, _core.MAX_THREADS, " (0: one per core)"))
 
 
 def get_threads() -> int:

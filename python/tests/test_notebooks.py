@@ -16,6 +16,8 @@ NOTEBOOKS = {
     "natural_gas_phase_map.ipynb": ["natural_gas_phase_map.png"],
     "gibbs_branches.ipynb": ["gibbs_branches.png"],
     "water_phases_gibbs.ipynb": ["water_phases_gibbs.png"],
+    "envelope_and_valve.ipynb": ["envelope_and_valve.png"],
+    "reaction_equilibrium.ipynb": ["reaction_equilibrium.png"],
 }
 
 

@@ -187,6 +187,7 @@ def calculate(
         _check_model,
         _check_progress,
         _check_threads,
+        _count,
         _failures,
         _feed,
         _on_error,
@@ -219,8 +220,12 @@ def calculate(
         vals = [_scalar(a, s[0]) for a, s in zip(args, argspec)]
         return _core.calc_point(model, name, vals, np.ascontiguousarray(z, dtype=np.float64), opts)
     raise_errors = _on_error(on_error)
+    block = _count("block", block, 1, _core.MAX_POINTS)
     coords = [(a, s[0]) for a, s in zip(args, argspec)]
     shape, flat, zf = _broadcast_rows(z, *coords)
+    npts = int(np.prod(shape)) if shape else 1
+    if npts > _core.MAX_POINTS:
+        raise _invalid("points", f"{npts} points in one call; at most {_core.MAX_POINTS} are allowed")
     raw = _core.calc_sweep(
         model, name, flat, zf, opts, int(block), _check_threads(threads), _check_progress(progress), raise_errors
     )

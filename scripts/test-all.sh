@@ -27,6 +27,15 @@ cargo run --release --quiet -p tieline-examples --bin tieline -- saturation -c w
 cargo run --release --quiet -p tieline-examples --bin tieline -- flash -c methane,n-hexane,water \
   --kij 0,2,0.5 --kij 1,2,0.5 -t 300 -p 20bar -z 0.3,0.2,0.5 --phases 3 --json | grep -c '"liquid2"' > /dev/null
 
+# Calculations by name: a PH flash of water in its dome, an envelope, a flame temperature.
+cargo run --release --quiet -p tieline-examples --bin tieline -- calc flash_ph -c water -e iapws95 \
+  --arg pressure=1atm --arg enthalpy=-255000 --json | grep -q '"num_phases": 2'
+cargo run --release --quiet -p tieline-examples --bin tieline -- calc phase_envelope -c methane,ethane \
+  -z 0.5,0.5 --json | grep -q '"cricondenbar_pressure"'
+cargo run --release --quiet -p tieline-examples --bin tieline -- calc reaction_hp \
+  -c methane,oxygen,nitrogen,water,"carbon dioxide","carbon monoxide",hydrogen --option 'extra_species=["OH","H","O","NO"]' \
+  -z 1,2,7.52,0,0,0,0,0,0,0,0 --arg pressure=1atm --arg enthalpy=-74873 --json | grep -q '"temperature": 22'
+
 if [ -x ffi/run-tests.sh ]; then
   step "C ABI and C++ tests"
   ffi/run-tests.sh

@@ -65,8 +65,8 @@ pub struct Calculation {
     run: RunFn,
 }
 
-/// How a calculation runs: options, warm-start state, model, scalar arguments, feed.
-type RunFn = fn(&Options, &mut Workspace, &Model, &[f64], &[f64]) -> Result<Record>;
+/// How a calculation runs: its name, options, warm-start state, model, scalar arguments, feed.
+type RunFn = fn(&'static str, &Options, &mut Workspace, &Model, &[f64], &[f64]) -> Result<Record>;
 
 impl std::fmt::Debug for Calculation {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
@@ -208,7 +208,7 @@ impl Plan {
                 ),
             ));
         }
-        (self.calc.run)(&self.options, ws, model, args, feed)
+        (self.calc.run)(self.calc.name, &self.options, ws, model, args, feed)
     }
 }
 
@@ -495,6 +495,36 @@ fn state_derivative_fields(
     }
 }
 
+/// A state-function flash (PH, PS, TV, UV): [`StateFlashOptions`], solved by [`state_flash`].
+const fn state_calculation(name: &'static str, summary: &'static str, arguments: &'static [Argument]) -> Calculation {
+    Calculation {
+        name,
+        summary,
+        arguments,
+        feed_extension: None,
+        defaults: defaults_of::<StateFlashOptions>,
+        parse: |v| Ok(Options::State(parse_as(v)?)),
+        run: state_flash,
+    }
+}
+
+/// A reaction equilibrium (TP, HP, SP): [`ReactionCalcOptions`], solved by [`reaction`].
+const fn reaction_calculation(
+    name: &'static str,
+    summary: &'static str,
+    arguments: &'static [Argument],
+) -> Calculation {
+    Calculation {
+        name,
+        summary,
+        arguments,
+        feed_extension: Some("extra_species"),
+        defaults: defaults_of::<ReactionCalcOptions>,
+        parse: |v| Ok(Options::Reaction(parse_as(v)?)),
+        run: reaction,
+    }
+}
+
 /// Every calculation the bindings expose.
 pub static CALCULATIONS: &[Calculation] = &[
     Calculation {
@@ -504,7 +534,7 @@ pub static CALCULATIONS: &[Calculation] = &[
         feed_extension: None,
         defaults: defaults_of::<FlashOptions>,
         parse: |v| Ok(Options::Flash(parse_as(v)?)),
-        run: |o, ws, m, a, feed| {
+        run: |_, o, ws, m, a, feed| {
             let o = flash_options(o)?;
             let r = ws.flash.flash(m, a[0], a[1], feed, o)?;
             let mut rec = Record::new("flash_pt");
@@ -520,7 +550,7 @@ pub static CALCULATIONS: &[Calculation] = &[
         feed_extension: None,
         defaults: defaults_of::<FlashOptions>,
         parse: |v| Ok(Options::Flash(parse_as(v)?)),
-        run: |o, ws, m, a, feed| {
+        run: |_, o, ws, m, a, feed| {
             let o = flash_options(o)?;
             let r = ws.flash.flash(m, a[0], a[1], feed, o)?;
             ws.sensitivity.compute(m, r, &mut ws.derivatives)?;
@@ -530,58 +560,38 @@ pub static CALCULATIONS: &[Calculation] = &[
             Ok(rec)
         },
     },
-    Calculation {
-        name: "flash_ph",
-        summary: "the equilibrium state at given pressure and molar enthalpy (a valve, a heat exchanger)",
-        arguments: &[P_ARG, H_ARG],
-        feed_extension: None,
-        defaults: defaults_of::<StateFlashOptions>,
-        parse: |v| Ok(Options::State(parse_as(v)?)),
-        run: |o, ws, m, a, feed| state_flash("flash_ph", o, ws, m, a, feed),
-    },
-    Calculation {
-        name: "flash_ps",
-        summary: "the equilibrium state at given pressure and molar entropy (an isentropic compressor or expander)",
-        arguments: &[P_ARG, S_ARG],
-        feed_extension: None,
-        defaults: defaults_of::<StateFlashOptions>,
-        parse: |v| Ok(Options::State(parse_as(v)?)),
-        run: |o, ws, m, a, feed| state_flash("flash_ps", o, ws, m, a, feed),
-    },
-    Calculation {
-        name: "flash_tv",
-        summary: "the equilibrium state at given temperature and volume per mol of feed (a vessel at known T)",
-        arguments: &[T_ARG, V_ARG],
-        feed_extension: None,
-        defaults: defaults_of::<StateFlashOptions>,
-        parse: |v| Ok(Options::State(parse_as(v)?)),
-        run: |o, ws, m, a, feed| state_flash("flash_tv", o, ws, m, a, feed),
-    },
-    Calculation {
-        name: "flash_uv",
-        summary: "the equilibrium state at given molar internal energy and volume (a closed, rigid vessel)",
-        arguments: &[U_ARG, V_ARG],
-        feed_extension: None,
-        defaults: defaults_of::<StateFlashOptions>,
-        parse: |v| Ok(Options::State(parse_as(v)?)),
-        run: |o, ws, m, a, feed| state_flash("flash_uv", o, ws, m, a, feed),
-    },
-    Calculation {
-        name: "reaction_tp",
-        summary: "chemical equilibrium at given temperature and pressure: the least Gibbs energy under the \
-                  element balances (Gordon & McBride 1994 Lagrangian Newton); feed = the model's \
-                  components, then the extra species",
-        arguments: &[T_ARG, P_ARG],
-        feed_extension: Some("extra_species"),
-        defaults: defaults_of::<ReactionCalcOptions>,
-        parse: |v| Ok(Options::Reaction(parse_as(v)?)),
-        run: |o, ws, m, a, feed| reaction("reaction_tp", o, ws, m, a, feed),
-    },
-    Calculation {
-        name: "reaction_hp",
-        summary: "chemical equilibrium at given pressure and total enthalpy (J; adiabatic flame \
-                  temperature at constant pressure)",
-        arguments: &[
+    state_calculation(
+        "flash_ph",
+        "the equilibrium state at given pressure and molar enthalpy (a valve, a heat exchanger)",
+        &[P_ARG, H_ARG],
+    ),
+    state_calculation(
+        "flash_ps",
+        "the equilibrium state at given pressure and molar entropy (an isentropic compressor or expander)",
+        &[P_ARG, S_ARG],
+    ),
+    state_calculation(
+        "flash_tv",
+        "the equilibrium state at given temperature and volume per mol of feed (a vessel at known T)",
+        &[T_ARG, V_ARG],
+    ),
+    state_calculation(
+        "flash_uv",
+        "the equilibrium state at given molar internal energy and volume (a closed, rigid vessel)",
+        &[U_ARG, V_ARG],
+    ),
+    reaction_calculation(
+        "reaction_tp",
+        "chemical equilibrium at given temperature and pressure: the least Gibbs energy under the \
+         element balances (Gordon & McBride 1994 Lagrangian Newton); feed = the model's \
+         components, then the extra species",
+        &[T_ARG, P_ARG],
+    ),
+    reaction_calculation(
+        "reaction_hp",
+        "chemical equilibrium at given pressure and total enthalpy (adiabatic flame temperature at \
+         constant pressure)",
+        &[
             P_ARG,
             Argument {
                 name: "enthalpy",
@@ -589,16 +599,12 @@ pub static CALCULATIONS: &[Calculation] = &[
                 doc: "total enthalpy of the feed (e.g. of the reactants at their inlet temperature)",
             },
         ],
-        feed_extension: Some("extra_species"),
-        defaults: defaults_of::<ReactionCalcOptions>,
-        parse: |v| Ok(Options::Reaction(parse_as(v)?)),
-        run: |o, ws, m, a, feed| reaction("reaction_hp", o, ws, m, a, feed),
-    },
-    Calculation {
-        name: "reaction_sp",
-        summary: "chemical equilibrium at given pressure and total entropy (J/K; isentropic expansion \
-                  of equilibrium products)",
-        arguments: &[
+    ),
+    reaction_calculation(
+        "reaction_sp",
+        "chemical equilibrium at given pressure and total entropy (isentropic expansion of \
+         equilibrium products)",
+        &[
             P_ARG,
             Argument {
                 name: "entropy",
@@ -606,11 +612,7 @@ pub static CALCULATIONS: &[Calculation] = &[
                 doc: "total entropy of the mixture",
             },
         ],
-        feed_extension: Some("extra_species"),
-        defaults: defaults_of::<ReactionCalcOptions>,
-        parse: |v| Ok(Options::Reaction(parse_as(v)?)),
-        run: |o, ws, m, a, feed| reaction("reaction_sp", o, ws, m, a, feed),
-    },
+    ),
     Calculation {
         name: "phase_envelope",
         summary: "the bubble and dew curves of a mixture traced through its critical point, with the \
@@ -619,7 +621,7 @@ pub static CALCULATIONS: &[Calculation] = &[
         feed_extension: None,
         defaults: defaults_of::<EnvelopeOptions>,
         parse: |v| Ok(Options::Envelope(parse_as(v)?)),
-        run: |o, _ws, m, _a, feed| {
+        run: |_, o, _ws, m, _a, feed| {
             let Options::Envelope(o) = o else {
                 return Err(wrong_options("phase-envelope"));
             };
@@ -636,7 +638,7 @@ pub static CALCULATIONS: &[Calculation] = &[
         feed_extension: None,
         defaults: defaults_of::<CriticalOptions>,
         parse: |v| Ok(Options::Critical(parse_as(v)?)),
-        run: |o, _ws, m, _a, feed| {
+        run: |_, o, _ws, m, _a, feed| {
             let Options::Critical(o) = o else {
                 return Err(wrong_options("critical-point"));
             };

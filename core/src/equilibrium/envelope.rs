@@ -21,8 +21,8 @@
 //! its identity through the critical region.
 //!
 //! The trace starts at the bubble point at [`EnvelopeOptions::start_pressure`] (from
-//! [`bubble_temperature`](super::bubble_temperature); if there is none, at the dew point from
-//! [`dew_temperature`](super::dew_temperature), and the points are then reported in the same
+//! [`bubble_temperature`]; if there is none, at the dew point from
+//! [`dew_temperature`], and the points are then reported in the same
 //! bubble-to-dew order), climbs the bubble branch and, where every ln K_i changes sign, crosses
 //! a critical point: the crossing is located by converging four points at ln K_k = ±δ, ±2δ
 //! (δ = 2e-3; k the component of largest sensitivity) and interpolating ln T and ln p to

@@ -8,7 +8,7 @@
 //! heat-capacity part of the NASA 7-coefficient polynomial form (McBride, Gordon & Reno 1993,
 //! NASA TM-4513): cp/R = a1 + a2 T + a3 T² + a4 T³ + a5 T⁴, T in K.
 //!
-//! Reference state: as for the components ([`super::ideal_gas`]), each species at 298.15 K and
+//! Reference state: as for the components (the `ideal_gas` module of this crate), each species at 298.15 K and
 //! 1e5 Pa in its own phase has h = ΔfH° and g = ΔfG°; h and s at other temperatures integrate
 //! cp across the ranges, so they are continuous at every range boundary.
 

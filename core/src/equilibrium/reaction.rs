@@ -29,9 +29,21 @@
 //! pressure, [`equilibrate_hp`]) and SP (isentropic, [`equilibrate_sp`]), the last two by a
 //! bracketed outer Newton iteration on T with the analytic equilibrium heat capacity
 //! (Gordon & McBride 1994, §2.5, the derivatives (∂ln n_j/∂ln T)_p from the same matrix).
-//! Not covered: TV/UV (constant-volume) specifications and the simultaneous reaction and
-//! vapour–liquid split with a fluid liquid phase (a condensate here is a pure condensed
-//! species).
+//!
+//! Constant volume: TV ([`equilibrate_tv`], a closed rigid vessel at known T) and UV
+//! ([`equilibrate_uv`], the constant-volume explosion). At fixed T and total volume V the
+//! equilibrium minimises the Helmholtz energy A = G − pV; since (∂G/∂p)_T = V, the minimum of
+//! A at (T, V) is the minimum of G at (T, p) for the p at which the equilibrium volume
+//! equals V (Gordon & McBride 1994, §2.2, state their (T, V) and (U, V) problems in these
+//! terms; cited from memory). The TP solver therefore runs inside a safeguarded Newton
+//! iteration on ln p with the analytic slope (∂ln V/∂ln p)_T of the reacting mixture, the
+//! composition shift (∂ln n_j/∂ln p)_T from the same Gordon–McBride matrix with the pressure
+//! right-hand side (1994, eq. 2.58; equation numbers here from memory), bracketed by the
+//! pressure search range. UV (U = H − pV at fixed V) runs a bracketed Newton iteration on T
+//! with the TV solver inside and the analytic equilibrium heat capacity at constant volume
+//! c_v = c_p + p (∂V/∂ln T)_p² / (T (∂V/∂ln p)_T) (1994, eq. 2.70, from memory) as slope.
+//! Not covered: the simultaneous reaction and vapour–liquid split with a fluid liquid phase
+//! (a condensate here is a pure condensed species).
 //!
 //! Units: T in K, p in Pa, amounts in mol, energies in J (per the whole system) or J/mol.
 //!
@@ -207,10 +219,19 @@ pub struct ReactionOptions {
     /// Upper temperature bound of the HP/SP search, K (`None`: the gas species' common cp
     /// range).
     pub t_max: Option<f64>,
-    /// First temperature of the HP/SP search, K (`None`: 1500 K, or the last solution of a
-    /// warm context).
+    /// First temperature of the HP/SP/UV search, K (`None`: 1500 K, or the last solution of
+    /// a warm context).
     pub t_guess: Option<f64>,
+    /// Lower pressure bound of the TV/UV pressure search, Pa (`None`: 1e-3 Pa).
+    pub p_min: Option<f64>,
+    /// Upper pressure bound of the TV/UV pressure search, Pa (`None`: 1e10 Pa).
+    pub p_max: Option<f64>,
 }
+
+/// Default lower bound of the TV/UV pressure search, Pa.
+const P_SEARCH_MIN: f64 = 1e-3;
+/// Default upper bound of the TV/UV pressure search, Pa.
+const P_SEARCH_MAX: f64 = 1e10;
 
 impl Default for ReactionOptions {
     fn default() -> Self {
@@ -221,6 +242,8 @@ impl Default for ReactionOptions {
             t_min: None,
             t_max: None,
             t_guess: None,
+            p_min: None,
+            p_max: None,
         }
     }
 }
@@ -275,6 +298,9 @@ pub struct ReactionResult {
     pub element_potentials: Vec<f64>,
     /// Enthalpy of the equilibrium mixture, J.
     pub enthalpy: f64,
+    /// Internal energy of the equilibrium mixture, U = H − pV, J.
+    #[serde(default)]
+    pub internal_energy: f64,
     /// Entropy of the equilibrium mixture, J/K.
     pub entropy: f64,
     /// Gibbs energy of the equilibrium mixture, J.
@@ -285,12 +311,22 @@ pub struct ReactionResult {
     pub cp_equilibrium: f64,
     /// Frozen isobaric heat capacity Σ n_j cp_j, J/K (ideal-gas and condensed standard state).
     pub cp_frozen: f64,
+    /// Equilibrium (reacting) isochoric heat capacity (dU/dT)_V with the composition
+    /// shifting, J/K: c_v = c_p + p (∂V/∂ln T)_p² / (T (∂V/∂ln p)_T), the volume derivatives
+    /// from the Gordon–McBride derivative systems (ideal-gas part, as for
+    /// `cp_equilibrium`).
+    #[serde(default)]
+    pub cv_equilibrium: f64,
     /// Volume of the gas phase plus the condensed species, m3.
     pub volume: f64,
     /// Newton iterations spent (for HP/SP: summed over the temperature iterations).
     pub iterations: usize,
-    /// Outer temperature iterations (HP/SP; 0 for TP).
+    /// Outer temperature iterations (HP/SP/UV; 0 for TP and TV).
     pub temperature_iterations: usize,
+    /// Outer pressure iterations (TV; for UV summed over the temperature iterations; 0
+    /// otherwise).
+    #[serde(default)]
+    pub pressure_iterations: usize,
     /// The minimum's certificate.
     pub certificate: ReactionCertificate,
 }
@@ -326,11 +362,20 @@ pub struct ReactionContext {
     lnn_tot: f64,
     warm: bool,
     last_t: Option<f64>,
+    /// Last (T, p) of a TV solution, K and Pa (warm start of the pressure search).
+    last_tp: Option<(f64, f64)>,
+    /// (∂V/∂ln T)_p and (∂V/∂ln p)_T of the last result, m3.
+    dv_dlnt: f64,
+    dv_dlnp: f64,
     // real-gas scratch
     fw: FugacityWork,
     phi: LnPhi,
     gas_n: Vec<f64>,
 }
+
+/// One evaluation of a temperature search: the equilibrium at T (K), the residual and its
+/// slope with respect to T.
+type TemperatureEval<'a> = dyn FnMut(&mut ReactionContext, f64) -> Result<(ReactionResult, f64, f64)> + 'a;
 
 struct Spec {
     t: f64,
@@ -378,6 +423,7 @@ impl ReactionContext {
     pub fn reset(&mut self) {
         self.warm = false;
         self.last_t = None;
+        self.last_tp = None;
     }
 
     /// TP equilibrium: see [`equilibrate_tp`].
@@ -430,9 +476,11 @@ impl ReactionContext {
         let it = self.solve(system, None, &Spec { t, p }, opts)?;
         let mut r = self.result(system, None, t, p, it, 0)?;
         r.enthalpy = 0.0;
+        r.internal_energy = 0.0;
         r.entropy = 0.0;
         r.cp_equilibrium = 0.0;
         r.cp_frozen = 0.0;
+        r.cv_equilibrium = 0.0;
         Ok(r)
     }
 
@@ -480,7 +528,24 @@ impl ReactionContext {
             return Err(Error::invalid(what, format!("{target} is not finite")));
         }
         self.prepare(sys, feed, opts)?;
-        // The bracket: the common cp range of the gas species that can be present.
+        let label = if entropy { "SP" } else { "HP" };
+        self.search_temperature(sys, opts, what, label, target, &mut |c, t| {
+            c.standard(sys, t, p, opts)?;
+            let it = c.solve(sys, model, &Spec { t, p }, opts)?;
+            let r = c.result(sys, model, t, p, it, 0)?;
+            Ok(if entropy {
+                let (f, df) = (r.entropy - target, r.cp_equilibrium / t);
+                (r, f, df)
+            } else {
+                let (f, df) = (r.enthalpy - target, r.cp_equilibrium);
+                (r, f, df)
+            })
+        })
+    }
+
+    /// The temperature search range: the common cp range of the gas species that can be
+    /// present, narrowed by the options, K.
+    fn temperature_bounds(&self, sys: &ReactionSystem, opts: &ReactionOptions) -> Result<(f64, f64)> {
         let (mut lo, mut hi) = (0.0f64, f64::INFINITY);
         for &j in &sys.gas {
             if self.active[j] {
@@ -503,19 +568,33 @@ impl ReactionContext {
                 format!("empty range [{lo}, {hi}] K"),
             ));
         }
+        Ok((lo, hi))
+    }
+
+    /// Bracketed Newton iteration on T for a state function that increases with T: `eval`
+    /// returns the equilibrium at T, the residual f(T) (value − `target`) and its slope
+    /// df/dT > 0. Newton steps leaving the bracket try the untested bound, else bisect.
+    fn search_temperature(
+        &mut self,
+        sys: &ReactionSystem,
+        opts: &ReactionOptions,
+        what: &str,
+        label: &str,
+        target: f64,
+        eval: &mut TemperatureEval<'_>,
+    ) -> Result<ReactionResult> {
+        let (mut lo, mut hi) = self.temperature_bounds(sys, opts)?;
         let (blo, bhi) = (lo, hi);
         let mut t = opts.t_guess.or(self.last_t).unwrap_or(1500.0).clamp(lo, hi);
-        let mut total_it = 0;
+        let (mut total_it, mut total_p) = (0, 0);
         let (mut f_lo, mut f_hi): (Option<f64>, Option<f64>) = (None, None);
         for outer in 1..=100 {
-            self.standard(sys, t, p, opts)?;
-            total_it += self.solve(sys, model, &Spec { t, p }, opts)?;
-            let r = self.result(sys, model, t, p, total_it, outer)?;
-            let (f, df) = if entropy {
-                (r.entropy - target, r.cp_equilibrium / t)
-            } else {
-                (r.enthalpy - target, r.cp_equilibrium)
-            };
+            let (mut r, f, df) = eval(self, t)?;
+            total_it += r.iterations;
+            total_p += r.pressure_iterations;
+            r.iterations = total_it;
+            r.pressure_iterations = total_p;
+            r.temperature_iterations = outer;
             if f > 0.0 {
                 hi = t;
                 f_hi = Some(f);
@@ -551,12 +630,148 @@ impl ReactionContext {
             t = next;
         }
         Err(Error::not_converged(
-            format!(
-                "{} equilibrium temperature iteration",
-                if entropy { "SP" } else { "HP" }
-            ),
+            format!("{label} equilibrium temperature iteration"),
             vec![("temperature".into(), 100), ("Newton".into(), total_it)],
             hi - lo,
+            opts.tolerance,
+        ))
+    }
+
+    /// TV equilibrium: see [`equilibrate_tv`].
+    pub fn equilibrate_tv(
+        &mut self,
+        system: &ReactionSystem,
+        model: Option<&dyn FluidModel>,
+        t: f64,
+        v: f64,
+        feed: &[f64],
+        opts: &ReactionOptions,
+    ) -> Result<ReactionResult> {
+        check::temperature(t)?;
+        check::volume(v)?;
+        check_model(system, model)?;
+        self.prepare(system, feed, opts)?;
+        self.volume_search(system, model, t, v, feed, opts)
+    }
+
+    /// UV equilibrium: see [`equilibrate_uv`].
+    pub fn equilibrate_uv(
+        &mut self,
+        system: &ReactionSystem,
+        model: Option<&dyn FluidModel>,
+        u: f64,
+        v: f64,
+        feed: &[f64],
+        opts: &ReactionOptions,
+    ) -> Result<ReactionResult> {
+        check::volume(v)?;
+        check_model(system, model)?;
+        if !u.is_finite() {
+            return Err(Error::invalid("internal energy", format!("{u} J is not finite")));
+        }
+        self.prepare(system, feed, opts)?;
+        self.search_temperature(system, opts, "internal energy", "UV", u, &mut |c, t| {
+            let r = c.volume_search(system, model, t, v, feed, opts)?;
+            let (f, df) = (r.internal_energy - u, r.cv_equilibrium);
+            Ok((r, f, df))
+        })
+    }
+
+    /// The pressure search range of TV/UV, Pa.
+    fn pressure_bounds(opts: &ReactionOptions) -> Result<(f64, f64)> {
+        let lo = opts.p_min.unwrap_or(P_SEARCH_MIN);
+        let hi = opts.p_max.unwrap_or(P_SEARCH_MAX);
+        check::pressure(lo)?;
+        check::pressure(hi)?;
+        if !(lo < hi) {
+            return Err(Error::invalid(
+                "pressure bounds",
+                format!("empty range [{lo}, {hi}] Pa"),
+            ));
+        }
+        Ok((lo, hi))
+    }
+
+    /// Safeguarded Newton iteration on ln p at fixed T for the equilibrium volume V (m3):
+    /// f(ln p) = ln V_eq(T, p) − ln V, which decreases with p (mechanical stability), with the
+    /// analytic slope (∂ln V/∂ln p)_T of the reacting mixture. Steps are limited to a factor
+    /// 10 in p; steps leaving the bracket try the untested bound, else bisect. Assumes
+    /// [`Self::prepare`] has run.
+    fn volume_search(
+        &mut self,
+        sys: &ReactionSystem,
+        model: Option<&dyn FluidModel>,
+        t: f64,
+        v: f64,
+        feed: &[f64],
+        opts: &ReactionOptions,
+    ) -> Result<ReactionResult> {
+        let (pmin, pmax) = Self::pressure_bounds(opts)?;
+        let (blo, bhi) = (pmin.ln(), pmax.ln());
+        let (mut lo, mut hi) = (blo, bhi);
+        // First pressure: the last solution scaled to this T at fixed V (ideal gas), else the
+        // ideal-gas pressure of the feed's gas amount (of all its amounts if it has no gas).
+        let p0 = match self.last_tp {
+            Some((t0, p0)) if self.warm => p0 * t / t0,
+            _ => {
+                let ng: f64 = sys.gas.iter().map(|&j| feed[j]).sum();
+                let n = if ng > 0.0 { ng } else { feed.iter().sum() };
+                n * R * t / v
+            }
+        };
+        let mut x = p0.ln().clamp(lo, hi);
+        let mut total_it = 0;
+        let (mut f_lo, mut f_hi): (Option<f64>, Option<f64>) = (None, None);
+        let mut last_f = f64::NAN;
+        for outer in 1..=100 {
+            let p = x.exp();
+            self.standard(sys, t, p, opts)?;
+            total_it += self.solve(sys, model, &Spec { t, p }, opts)?;
+            let mut r = self.result(sys, model, t, p, total_it, 0)?;
+            r.pressure_iterations = outer;
+            let f = (r.volume / v).ln();
+            last_f = f;
+            let df = self.dv_dlnp / r.volume;
+            if f > 0.0 {
+                lo = x;
+                f_lo = Some(f);
+            } else {
+                hi = x;
+                f_hi = Some(f);
+            }
+            let step = if df < 0.0 {
+                (-f / df).clamp(-std::f64::consts::LN_10, std::f64::consts::LN_10)
+            } else {
+                f64::NAN
+            };
+            if step.abs() <= opts.tolerance.max(1e-14) * 10.0 || f == 0.0 {
+                self.last_tp = Some((t, p));
+                return Ok(r);
+            }
+            let mut next = x + step;
+            if !(next > lo && next < hi) || !next.is_finite() {
+                if next >= hi && f_hi.is_none() {
+                    next = hi;
+                } else if next <= lo && f_lo.is_none() {
+                    next = lo;
+                } else {
+                    next = 0.5 * (lo + hi);
+                }
+            }
+            if next == x {
+                let (bound, side) = if f > 0.0 { (pmax, "above") } else { (pmin, "below") };
+                return Err(Error::NoSolution(format!(
+                    "the volume specification {v} m3 at {t} K needs a pressure {side} the bound {bound} Pa of the \
+                     search range [{pmin}, {pmax}] Pa (options p_min/p_max); at {p} Pa the equilibrium volume is {} m3",
+                    r.volume
+                )));
+            }
+            x = next;
+        }
+        Err(Error::not_converged(
+            "TV equilibrium pressure iteration",
+            vec![("pressure".into(), 100), ("Newton".into(), total_it)],
+            last_f.abs(),
             opts.tolerance,
         ))
     }
@@ -1091,11 +1306,20 @@ impl ReactionContext {
         h += hr * R * t;
         s += (hr - gr) * R;
         let cpe = self.equilibrium_cp(sys, &amounts) * R + (cpf - 0.0);
-        let volume = ngas * R * t * z / p
+        let vgas = ngas * R * t * z / p;
+        let volume = vgas
             + (0..ns)
                 .filter(|&j| self.in_set[j])
                 .map(|j| amounts[j] * sys.species[j].molar_volume.unwrap_or(0.0))
                 .sum::<f64>();
+        let (dv_dlnt, dv_dlnp) = self.volume_derivatives(sys, &amounts, t, p, vgas);
+        self.dv_dlnt = dv_dlnt;
+        self.dv_dlnp = dv_dlnp;
+        let cve = if dv_dlnp < 0.0 {
+            cpe + p * dv_dlnt * dv_dlnt / (t * dv_dlnp)
+        } else {
+            f64::NAN
+        };
         let mut excluded = self.excluded.clone();
         excluded.dedup();
         Ok(ReactionResult {
@@ -1110,13 +1334,16 @@ impl ReactionContext {
             gas_amount: ngas,
             element_potentials: lam,
             enthalpy: h,
+            internal_energy: h - p * volume,
             entropy: s,
             gibbs: g,
             cp_equilibrium: cpe,
             cp_frozen: cpf,
+            cv_equilibrium: cve,
             volume,
             iterations,
             temperature_iterations: t_iterations,
+            pressure_iterations: 0,
             certificate: ReactionCertificate {
                 reduced_gibbs: reduced,
                 min_absent,
@@ -1126,6 +1353,55 @@ impl ReactionContext {
                 dependent_elements: self.dependent.clone(),
             },
         })
+    }
+
+    /// (∂V/∂ln T)_p and (∂V/∂ln p)_T of the equilibrium mixture, m3, with the composition
+    /// shifting: V = V_gas + Σ_c v_c n_c, (∂V_gas/∂ln X) = V_gas (δ_XT − δ_Xp + ∂ln n/∂ln X)
+    /// with n the gas amount (ideal-gas part: the compressibility factor is held). The
+    /// derivatives ∂ln n/∂ln X and ∂n_c/∂ln X solve the Gordon–McBride matrix with the
+    /// temperature right-hand side (1994, eq. 2.56) and with the pressure right-hand side
+    /// (eq. 2.58): element rows Σ_j a_kj n_j, condensed rows v_c p/(RT), total row Σ_j n_j.
+    /// NaN when a system is singular.
+    fn volume_derivatives(&mut self, sys: &ReactionSystem, amounts: &[f64], t: f64, p: f64, vgas: f64) -> (f64, f64) {
+        let ns = sys.num_species();
+        let m = self.rows.len();
+        let a = |k: usize, j: usize| sys.formula[k * ns + j];
+        let mut out = [f64::NAN; 2];
+        for (which, o) in out.iter_mut().enumerate() {
+            let pressure = which == 1;
+            let nn = self.build(sys);
+            for (r, &k) in self.rows.iter().enumerate() {
+                self.rhs[r] = sys
+                    .gas
+                    .iter()
+                    .filter(|&&j| self.eligible[j])
+                    .map(|&j| a(k, j) * amounts[j] * if pressure { 1.0 } else { -self.h0[j] })
+                    .sum::<f64>();
+            }
+            for c in 0..self.set.len() {
+                let j = self.set[c];
+                self.rhs[m + c] = if pressure {
+                    sys.species[j].molar_volume.unwrap_or(0.0) * p / (R * t)
+                } else {
+                    -self.h0[j]
+                };
+            }
+            self.rhs[nn - 1] = sys
+                .gas
+                .iter()
+                .filter(|&&j| self.eligible[j])
+                .map(|&j| amounts[j] * if pressure { 1.0 } else { -self.h0[j] })
+                .sum::<f64>();
+            if !lu_solve(&mut self.mat, nn, &mut self.rhs) {
+                continue;
+            }
+            let mut dv = vgas * (self.rhs[nn - 1] + if pressure { -1.0 } else { 1.0 });
+            for c in 0..self.set.len() {
+                dv += sys.species[self.set[c]].molar_volume.unwrap_or(0.0) * self.rhs[m + c];
+            }
+            *o = dv;
+        }
+        (out[0], out[1])
     }
 
     /// The reaction part of the equilibrium heat capacity, (cp_eq − cp_frozen)/R (mol):
@@ -1261,4 +1537,50 @@ pub fn equilibrate_sp(
     opts: &ReactionOptions,
 ) -> Result<ReactionResult> {
     ReactionContext::new(system).equilibrate_sp(system, model, p, s, feed, opts)
+}
+
+/// Equilibrium at temperature `t` (K) in a closed rigid vessel of total volume `v` (m3,
+/// gas plus condensed species) holding the feed amounts `feed` (mol): the minimum of the
+/// Helmholtz energy at (T, V), found as the TP equilibrium at the pressure whose
+/// equilibrium volume is `v` (see the module documentation). The pressure is searched in
+/// [`ReactionOptions::p_min`], [`ReactionOptions::p_max`] (default 1e-3 Pa to 1e10 Pa).
+/// Errors: `v` not finite and > 0 m3, or a bad feed, is [`Error::InvalidInput`]; a volume
+/// that needs a pressure outside the search range is [`Error::NoSolution`] naming the
+/// bound; otherwise as for [`equilibrate_tp`].
+///
+/// ```
+/// use tieline::equilibrium::reaction::{ReactionOptions, ReactionSystem, equilibrate_tv};
+/// let sys = ReactionSystem::from_names(&["CO", "H2O", "CO2", "H2"])?;
+/// // 2 mol of gas (the shift keeps the amount) in 0.1663 m3 at 1000 K: about 1e5 Pa.
+/// let r = equilibrate_tv(&sys, None, 1000.0, 0.1663, &[1.0, 1.0, 0.0, 0.0], &ReactionOptions::default())?;
+/// assert!((r.pressure / 1.0e5 - 1.0).abs() < 1e-3 && (r.volume / 0.1663 - 1.0).abs() < 1e-9);
+/// # Ok::<(), tieline::Error>(())
+/// ```
+pub fn equilibrate_tv(
+    system: &ReactionSystem,
+    model: Option<&dyn FluidModel>,
+    t: f64,
+    v: f64,
+    feed: &[f64],
+    opts: &ReactionOptions,
+) -> Result<ReactionResult> {
+    ReactionContext::new(system).equilibrate_tv(system, model, t, v, feed, opts)
+}
+
+/// Equilibrium at total internal energy `u` (J, of the whole feed, library reference state:
+/// U = H − pV, e.g. [`ReactionSystem::enthalpy`] of an ideal-gas feed minus n R T) and total
+/// volume `v` (m3): the adiabatic constant-volume explosion. The temperature is searched
+/// within the gas species' common cp range (narrowed by `opts.t_min`/`t_max`) with
+/// [`equilibrate_tv`] inside; an internal energy with no solution there is
+/// [`Error::NoSolution`] naming the temperature bound. Other errors as for
+/// [`equilibrate_tv`].
+pub fn equilibrate_uv(
+    system: &ReactionSystem,
+    model: Option<&dyn FluidModel>,
+    u: f64,
+    v: f64,
+    feed: &[f64],
+    opts: &ReactionOptions,
+) -> Result<ReactionResult> {
+    ReactionContext::new(system).equilibrate_uv(system, model, u, v, feed, opts)
 }

@@ -1512,6 +1512,36 @@ tl_status tl_reaction_sp(const struct tl_model *model,
                          struct tl_record *record);
 
 /**
+ * Chemical equilibrium at given temperature and total volume (a closed rigid vessel): `temperature` (K), `volume` (m3, total); species, feed,
+ * options and fields as `tl_reaction_tp`. A volume or energy out of reach is
+ * `TL_STATUS_NO_SOLUTION` naming the bound. Equilibrium is a limit, not a prediction of
+ * kinetics.
+ */
+tl_status tl_reaction_tv(const struct tl_model *model,
+                         double temperature,
+                         double volume,
+                         const double *feed,
+                         size_t n,
+                         const char *options_json,
+                         struct tl_workspace *workspace,
+                         struct tl_record *record);
+
+/**
+ * Chemical equilibrium at given total internal energy and volume (a constant-volume explosion): `internal_energy` (J, total), `volume` (m3, total); species, feed,
+ * options and fields as `tl_reaction_tp`. A volume or energy out of reach is
+ * `TL_STATUS_NO_SOLUTION` naming the bound. Equilibrium is a limit, not a prediction of
+ * kinetics.
+ */
+tl_status tl_reaction_uv(const struct tl_model *model,
+                         double internal_energy,
+                         double volume,
+                         const double *feed,
+                         size_t n,
+                         const char *options_json,
+                         struct tl_workspace *workspace,
+                         struct tl_record *record);
+
+/**
  * Ice Ih by the IAPWS-06 Gibbs function (IAPWS R10-06(2009)), species "water"; evaluated
  * for 0 < T ≤ 273.16 K and p ≤ 210 MPa. Its reference state is consistent
  * with the IAPWS-95 water model (`{"model": "iapws95"}`). On success `*out` receives a new

@@ -367,3 +367,67 @@ pub unsafe extern "C" fn tl_reaction_sp(
         }
     })
 }
+
+/// Chemical equilibrium at given temperature and total volume (a closed rigid vessel): `temperature` (K), `volume` (m3, total); species, feed,
+/// options and fields as `tl_reaction_tp`. A volume or energy out of reach is
+/// `TL_STATUS_NO_SOLUTION` naming the bound. Equilibrium is a limit, not a prediction of
+/// kinetics.
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_reaction_tv(
+    model: *const tl_model,
+    temperature: f64,
+    volume: f64,
+    feed: *const f64,
+    n: usize,
+    options_json: *const c_char,
+    workspace: *mut tl_workspace,
+    record: *mut tl_record,
+) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        unsafe {
+            named(
+                "reaction_tv",
+                options_json,
+                workspace,
+                model,
+                &[temperature, volume],
+                feed,
+                n,
+                record,
+            )
+        }
+    })
+}
+
+/// Chemical equilibrium at given total internal energy and volume (a constant-volume explosion): `internal_energy` (J, total), `volume` (m3, total); species, feed,
+/// options and fields as `tl_reaction_tp`. A volume or energy out of reach is
+/// `TL_STATUS_NO_SOLUTION` naming the bound. Equilibrium is a limit, not a prediction of
+/// kinetics.
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_reaction_uv(
+    model: *const tl_model,
+    internal_energy: f64,
+    volume: f64,
+    feed: *const f64,
+    n: usize,
+    options_json: *const c_char,
+    workspace: *mut tl_workspace,
+    record: *mut tl_record,
+) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        unsafe {
+            named(
+                "reaction_uv",
+                options_json,
+                workspace,
+                model,
+                &[internal_energy, volume],
+                feed,
+                n,
+                record,
+            )
+        }
+    })
+}

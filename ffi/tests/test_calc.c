@@ -230,6 +230,15 @@ int main(void) {
           "unknown species");
     CHECK(tl_reaction_tp(gas, 1.0e5, 1.0e5, n0, 4, NULL, ws, rec) == TL_STATUS_OUTSIDE_VALIDITY,
           "a temperature outside the cp ranges");
+    /* The closed vessel at the volume of the 1000 K, 1 bar equilibrium returns its pressure. */
+    double v = 0, p_tv = 0;
+    OK(tl_reaction_tp(gas, 1000.0, 1.0e5, n0, 4, NULL, NULL, rec));
+    OK(tl_record_number(rec, "volume", &v));
+    OK(tl_reaction_tv(gas, 1000.0, v, n0, 4, NULL, NULL, rec));
+    OK(tl_record_number(rec, "pressure", &p_tv));
+    CHECK(fabs(p_tv / 1.0e5 - 1.0) < 1e-9, "TV inverts TP");
+    CHECK(tl_reaction_tv(gas, 1000.0, -1.0, n0, 4, NULL, NULL, rec) == TL_STATUS_INVALID_INPUT, "negative volume");
+    CHECK(tl_reaction_uv(gas, 1.0e12, v, n0, 4, NULL, NULL, rec) == TL_STATUS_NO_SOLUTION, "unreachable energy");
     tl_model_free(gas);
   }
 

@@ -191,3 +191,20 @@ def test_reaction_equilibrium_by_name():
         tl.reaction_hp(air, 101325.0, -74873.0, [1.0, 2.0, 7.52, 0, 0, 0, 0], extra_species=extra)
     with pytest.raises(tl.UnknownComponentError):
         tl.reaction_tp(wgs, 1000.0, 1.0e5, [1.0, 1.0, 0.0, 0.0, 0.0], extra_species=["unobtainium"])
+
+
+def test_constant_volume_explosion_by_name():
+    """Stoichiometric methane-air from 298.15 K, 1 atm in a closed rigid vessel: about 2590 K
+    (from memory, tolerance 40 K); p_final/p_initial = (T_f/T_i)(n_products/n_reactants) exactly
+    for an ideal gas."""
+    air = tl.Model(["methane", "oxygen", "nitrogen", "water", "carbon dioxide", "carbon monoxide", "hydrogen"])
+    feed = [1.0, 2.0, 7.52, 0, 0, 0, 0, 0, 0, 0, 0]
+    n, r_gas, t0, p0 = 10.52, 8.314462618, 298.15, 101325.0
+    v = n * r_gas * t0 / p0
+    e = tl.reaction_uv(air, -74873.0 - n * r_gas * t0, v, feed, extra_species=["OH", "H", "O", "NO"])
+    assert e.temperature == pytest.approx(2590.0, abs=40.0)
+    assert e.pressure / p0 == pytest.approx(e.temperature / t0 * e.gas_amount / n, rel=1e-9)
+    t = tl.reaction_tv(air, e.temperature, v, feed, extra_species=["OH", "H", "O", "NO"])
+    assert t.pressure == pytest.approx(e.pressure, rel=1e-9)
+    with pytest.raises(tl.InvalidInputError):
+        tl.reaction_tv(air, 2000.0, -1.0, feed, extra_species=["OH", "H", "O", "NO"])

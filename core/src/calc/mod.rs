@@ -343,7 +343,9 @@ fn reaction(name: &'static str, o: &Options, ws: &mut Workspace, m: &Model, a: &
     let r = match name {
         "reaction_tp" => ctx.equilibrate_tp(sys, gas, a[0], a[1], feed, &o.solver)?,
         "reaction_hp" => ctx.equilibrate_hp(sys, gas, a[0], a[1], feed, &o.solver)?,
-        _ => ctx.equilibrate_sp(sys, gas, a[0], a[1], feed, &o.solver)?,
+        "reaction_sp" => ctx.equilibrate_sp(sys, gas, a[0], a[1], feed, &o.solver)?,
+        "reaction_tv" => ctx.equilibrate_tv(sys, gas, a[0], a[1], feed, &o.solver)?,
+        _ => ctx.equilibrate_uv(sys, gas, a[0], a[1], feed, &o.solver)?,
     };
     let mut rec = Record::new(name);
     reaction_fields(&mut rec, sys, &r);
@@ -363,13 +365,16 @@ fn reaction_fields(rec: &mut Record, sys: &ReactionSystem, r: &ReactionResult) {
         .texts("elements", sys.elements().to_vec())
         .numbers("element_potentials", "J/mol", r.element_potentials.clone())
         .number("enthalpy", "J", r.enthalpy)
+        .number("internal_energy", "J", r.internal_energy)
         .number("entropy", "J/K", r.entropy)
         .number("gibbs_energy", "J", r.gibbs)
         .number("cp_equilibrium", "J/K", r.cp_equilibrium)
+        .number("cv_equilibrium", "J/K", r.cv_equilibrium)
         .number("cp_frozen", "J/K", r.cp_frozen)
         .number("volume", "m3", r.volume)
         .count("iterations", r.iterations)
         .count("temperature_iterations", r.temperature_iterations)
+        .count("pressure_iterations", r.pressure_iterations)
         .maybe("certificate", "1", c.min_absent)
         .number("element_residual", "1", c.element_residual)
         .texts(
@@ -610,6 +615,36 @@ pub static CALCULATIONS: &[Calculation] = &[
                 name: "entropy",
                 unit: "J/K",
                 doc: "total entropy of the mixture",
+            },
+        ],
+    ),
+    reaction_calculation(
+        "reaction_tv",
+        "chemical equilibrium at given temperature and total volume (a closed rigid vessel at known \
+         T: the least Helmholtz energy)",
+        &[
+            T_ARG,
+            Argument {
+                name: "volume",
+                unit: "m3",
+                doc: "total volume of the vessel",
+            },
+        ],
+    ),
+    reaction_calculation(
+        "reaction_uv",
+        "chemical equilibrium at given total internal energy and volume (a constant-volume \
+         explosion in a closed rigid vessel)",
+        &[
+            Argument {
+                name: "internal_energy",
+                unit: "J",
+                doc: "total internal energy of the contents",
+            },
+            Argument {
+                name: "volume",
+                unit: "m3",
+                doc: "total volume of the vessel",
             },
         ],
     ),

@@ -54,6 +54,8 @@ from ._named import (
     reaction_hp,
     reaction_sp,
     reaction_tp,
+    reaction_tv,
+    reaction_uv,
 )
 from ._errors import (
     ConvergenceError,
@@ -115,6 +117,8 @@ __all__ = [
     "reaction_tp",
     "reaction_hp",
     "reaction_sp",
+    "reaction_tv",
+    "reaction_uv",
     "calculations",
     "describe",
     "Record",

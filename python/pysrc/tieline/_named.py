@@ -13,7 +13,7 @@ from typing import Any, Optional
 from ._calc import calculate
 from ._core import Model
 
-__all__ = ["flash_ph", "flash_ps", "flash_tv", "flash_uv", "flash_sensitivities", "phase_envelope", "critical_point", "reaction_tp", "reaction_hp", "reaction_sp"]
+__all__ = ["flash_ph", "flash_ps", "flash_tv", "flash_uv", "flash_sensitivities", "phase_envelope", "critical_point", "reaction_tp", "reaction_hp", "reaction_sp", "reaction_tv", "reaction_uv"]
 
 
 def flash_sensitivities(
@@ -162,7 +162,8 @@ Fields: ``temperature`` (K), ``pressure`` (Pa), ``species``, ``amounts`` (mol),
 Gibbs energy of the absent species; ≥ 0 at the minimum), ``iterations``.
 
 Options: ``extra_species``, ``real_gas``, ``tolerance``, ``max_iterations``, ``condensed``
-(allow condensed species), ``t_min``, ``t_max``, ``t_guess`` (HP/SP search, K).
+(allow condensed species), ``t_min``, ``t_max``, ``t_guess`` (HP/SP/UV search, K), ``p_min``,
+``p_max`` (TV/UV pressure search, Pa).
 
 Caution: equilibrium is a limit, not a prediction of kinetics; design of burners, vents and
 relief systems defers to the applicable codes and licensed practice.
@@ -181,6 +182,18 @@ def reaction_sp(model: Model, pressure: Any, entropy: Any, feed: Any, **kw: Any)
     return calculate("reaction_sp", model, pressure, entropy, feed=feed, **kw)
 
 
+def reaction_tv(model: Model, temperature: Any, volume: Any, feed: Any, **kw: Any) -> Any:
+    return calculate("reaction_tv", model, temperature, volume, feed=feed, **kw)
+
+
+def reaction_uv(model: Model, internal_energy: Any, volume: Any, feed: Any, **kw: Any) -> Any:
+    return calculate("reaction_uv", model, internal_energy, volume, feed=feed, **kw)
+
+
+reaction_tv.__doc__ = _REACTION_DOC.format(
+    title="Chemical equilibrium at given temperature (K) and total volume (m3): a closed rigid vessel.")
+reaction_uv.__doc__ = _REACTION_DOC.format(
+    title="Chemical equilibrium at given total internal energy (J) and volume (m3): a constant-volume explosion.")
 reaction_tp.__doc__ = _REACTION_DOC.format(
     title="Chemical equilibrium at given temperature (K) and pressure (Pa): the least Gibbs energy.")
 reaction_hp.__doc__ = _REACTION_DOC.format(

@@ -65,6 +65,8 @@ def test_options_and_arguments_are_checked(gas):
     assert r.certificate is None
     with pytest.raises(tl.InvalidInputError, match="tolerence"):
         tl.calculate("flash_pt", gas, 250.0, 2.0e6, feed=[0.6, 0.4], tolerence=1e-12)
+    with pytest.raises(tl.InvalidInputError, match="finite numbers"):
+        tl.calculate("flash_pt", gas, 250.0, 2.0e6, feed=[0.6, 0.4], tolerance=float("nan"))
     with pytest.raises(tl.InvalidInputError, match="max_phases"):
         tl.calculate("flash_pt", gas, 250.0, 2.0e6, feed=[0.6, 0.4], max_phases=7)
     with pytest.raises(tl.InvalidInputError, match="temperature"):

@@ -158,7 +158,7 @@ impl Plan {
             None | Some("") => None,
             Some(text) => Some(
                 serde_json::from_str::<Json>(text)
-                    .map_err(|e| Error::invalid("options", format!("not a JSON object: {e}")))?,
+                    .map_err(|e| Error::invalid("options", format!("not valid JSON (a JSON object of option names and values; NaN and infinities are not JSON): {e}")))?,
             ),
         };
         Plan::from_value(name, value.as_ref())

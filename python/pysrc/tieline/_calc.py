@@ -50,9 +50,11 @@ def _options_json(options: Dict[str, Any]) -> Optional[str]:
     if not options:
         return None
     try:
-        return json.dumps(_plain(options), allow_nan=True)
+        return json.dumps(_plain(options), allow_nan=False)
     except (TypeError, ValueError) as e:
-        raise _invalid("options", f"{e}; numbers, flags, lists and dicts of them are required") from None
+        raise _invalid(
+            "options", f"{e}; finite numbers, flags, words, lists and dicts of them are required"
+        ) from None
 
 
 class Sweep:

@@ -285,18 +285,28 @@ impl Columns {
                 }
             }
         }
-        // The field list: the union over points, in first-seen order.
+        // The field list: the union over points, in first-seen order. Records of one
+        // calculation usually list the same fields in the same order; only a record that
+        // differs from the list so far is merged into it name by name.
         let mut names: Vec<(String, String)> = Vec::new();
         for r in records.iter().flatten() {
+            let same =
+                r.fields.len() <= names.len() && r.fields.iter().zip(&names).all(|(f, (n, _))| f.name == n.as_str());
+            if same {
+                continue;
+            }
             for f in &r.fields {
                 if !names.iter().any(|(n, _)| n == f.name.as_ref()) {
                     names.push((f.name.to_string(), f.unit.to_string()));
                 }
             }
         }
+        // Columns are independent: stack them in parallel.
+        use rayon::prelude::*;
         let columns = names
-            .into_iter()
-            .map(|(name, unit)| stack(&records, name, unit))
+            .into_par_iter()
+            .enumerate()
+            .map(|(k, (name, unit))| stack(&records, k, name, unit))
             .collect();
         Columns {
             kind: kind.to_string(),
@@ -313,10 +323,19 @@ impl Columns {
     }
 }
 
-fn stack(records: &[Option<Record>], name: String, unit: String) -> Column {
+/// Stacks the field `name`, usually the `k`-th of every record (records of one calculation list
+/// their fields in one order; a record that differs is searched by name).
+fn stack(records: &[Option<Record>], k: usize, name: String, unit: String) -> Column {
     let values: Vec<Option<&Value>> = records
         .iter()
-        .map(|r| r.as_ref().and_then(|r| r.field(&name)).map(|f| &f.value))
+        .map(|r| {
+            r.as_ref()
+                .and_then(|r| match r.fields.get(k) {
+                    Some(f) if f.name == name => Some(f),
+                    _ => r.field(&name),
+                })
+                .map(|f| &f.value)
+        })
         .collect();
     // The kind of the column: the first non-absent value decides.
     let first = values.iter().flatten().find(|v| !matches!(v, Value::Absent)).copied();

@@ -924,3 +924,50 @@ fn water_forming_system_stays_one_phase_at_400_k() {
     let e = equilibrate_tp_fluid_phases(&sys, &wrong, 298.15, 1.0e5, &WATER_FORMING_FEED, &opts()).unwrap_err();
     assert_eq!(e.kind(), ErrorKind::InvalidInput);
 }
+
+/// Methanol synthesis, CO + 2 H2 ⇌ CH3OH and CO2 + 3 H2 ⇌ CH3OH + H2O, from 1 CO, 0.2 CO2 and
+/// 4 H2 (mol), Peng–Robinson (k_ij = 0) over [CO, CO2, H2, CH3OH, H2O] at 5e6 Pa. At 373.15 K
+/// the methanol and water formed condense: the one-fluid-phase equilibrium is unstable and
+/// the split gives an H2-rich vapour over a methanol–water liquid; at 473.15 K the
+/// equilibrium stays one vapour phase. No outside values: the checks are the conditions of
+/// the minimum (element balances to 1e-12 relative, equal μ of every species in both phases
+/// from the model to 1e-10, the stability certificate ≥ −1e-9).
+#[test]
+fn methanol_synthesis_condenses_a_methanol_water_liquid() {
+    let names = ["carbon monoxide", "carbon dioxide", "hydrogen", "methanol", "water"];
+    let sys = ReactionSystem::from_names(&names).unwrap();
+    let pr = pr_model(&names);
+    let feed = [1.0, 0.2, 4.0, 0.0, 0.0];
+    let p = 5.0e6;
+    let r = equilibrate_tp_fluid_phases(&sys, &pr, 373.15, p, &feed, &opts()).unwrap();
+    println!(
+        "373.15 K: one-phase tpd {:.3}, certificate {:.2e}, phases {:?}",
+        r.one_phase_min_tpd,
+        r.min_tpd,
+        r.phases.iter().map(|ph| (ph.kind, ph.amount)).collect::<Vec<_>>()
+    );
+    assert!(r.one_phase_min_tpd < -0.1);
+    assert_eq!(r.phases.len(), 2);
+    let (vap, liq) = (&r.phases[0], &r.phases[1]);
+    assert_eq!((vap.kind, liq.kind), (PhaseKind::Vapor, PhaseKind::Liquid));
+    assert!(vap.mole_fractions[2] > 0.5, "vapour H2 {}", vap.mole_fractions[2]);
+    assert!(liq.mole_fractions[3] + liq.mole_fractions[4] > 0.9);
+    let want = element_totals(&sys, &feed);
+    let got = element_totals(&sys, &r.amounts);
+    let bmax = want.iter().copied().fold(0.0, f64::max);
+    for (g, w) in got.iter().zip(&want) {
+        assert!((g - w).abs() <= 1e-12 * bmax, "element total {g} vs {w}");
+    }
+    let fv = ln_phi_of(&pr, 373.15, p, &vap.amounts, RootChoice::Stable);
+    let fl = ln_phi_of(&pr, 373.15, p, &liq.amounts, RootChoice::Stable);
+    for i in 0..5 {
+        let dv = vap.mole_fractions[i].ln() + fv.ln_phi[i];
+        let dl = liq.mole_fractions[i].ln() + fl.ln_phi[i];
+        assert!((dv - dl).abs() <= 1e-10, "species {i}: μ/RT differs by {}", dv - dl);
+    }
+    assert!(r.stable && r.min_tpd >= -1e-9, "certificate {}", r.min_tpd);
+    let hot = equilibrate_tp_fluid_phases(&sys, &pr, 473.15, p, &feed, &opts()).unwrap();
+    assert_eq!(hot.phases.len(), 1);
+    assert_eq!(hot.phases[0].kind, PhaseKind::Vapor);
+    assert!(hot.one_phase_min_tpd >= -1e-10 && hot.stable);
+}

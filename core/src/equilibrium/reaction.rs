@@ -42,8 +42,10 @@
 //! pressure search range. UV (U = H − pV at fixed V) runs a bracketed Newton iteration on T
 //! with the TV solver inside and the analytic equilibrium heat capacity at constant volume
 //! c_v = c_p + p (∂V/∂ln T)_p² / (T (∂V/∂ln p)_T) (1994, eq. 2.70, from memory) as slope.
-//! Not covered: the simultaneous reaction and vapour–liquid split with a fluid liquid phase
-//! (a condensate here is a pure condensed species).
+//! Reactive phase equilibrium with a fluid liquid phase (reaction and a vapour–liquid or
+//! liquid–liquid split together, both phases from the fluid model; TP only):
+//! [`equilibrate_tp_fluid_phases`], see the [`phases`] module. Elsewhere a condensate is a
+//! pure condensed species.
 //!
 //! Units: T in K, p in Pa, amounts in mol, energies in J (per the whole system) or J/mol.
 //!
@@ -58,6 +60,9 @@ use crate::model::{FluidModel, FugacityWork, LnPhi, Need, RootChoice, ln_phi};
 use crate::numerics::linalg::lu_solve;
 use crate::substance::{P_STANDARD, R, Species, SpeciesBank, SpeciesPhase};
 use serde::{Deserialize, Serialize};
+
+pub mod phases;
+pub use phases::{ReactivePhase, ReactivePhaseResult, equilibrate_tp_fluid_phases};
 
 /// Species list and formula matrix of a reacting system.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]

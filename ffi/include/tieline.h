@@ -1542,6 +1542,22 @@ tl_status tl_reaction_uv(const struct tl_model *model,
                          struct tl_record *record);
 
 /**
+ * Chemical and phase equilibrium together at given temperature (K) and pressure (Pa): the
+ * reacting mixture's stability test and, where it fails, its split into two fluid phases of
+ * the model (ln φ from the model; species = the model's components). Fields: `num_phases`,
+ * `phase_kinds`, `phase_amounts`, `compositions` (a row per phase), `amounts`,
+ * `element_potentials`, `one_phase_min_tpd`, `certificate`, `stable`.
+ */
+tl_status tl_reaction_tp_fluid_phases(const struct tl_model *model,
+                                      double temperature,
+                                      double pressure,
+                                      const double *feed,
+                                      size_t n,
+                                      const char *options_json,
+                                      struct tl_workspace *workspace,
+                                      struct tl_record *record);
+
+/**
  * Ice Ih by the IAPWS-06 Gibbs function (IAPWS R10-06(2009)), species "water"; evaluated
  * for 0 < T ≤ 273.16 K and p ≤ 210 MPa. Its reference state is consistent
  * with the IAPWS-95 water model (`{"model": "iapws95"}`). On success `*out` receives a new

@@ -431,3 +431,36 @@ pub unsafe extern "C" fn tl_reaction_uv(
         }
     })
 }
+
+/// Chemical and phase equilibrium together at given temperature (K) and pressure (Pa): the
+/// reacting mixture's stability test and, where it fails, its split into two fluid phases of
+/// the model (ln φ from the model; species = the model's components). Fields: `num_phases`,
+/// `phase_kinds`, `phase_amounts`, `compositions` (a row per phase), `amounts`,
+/// `element_potentials`, `one_phase_min_tpd`, `certificate`, `stable`.
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_reaction_tp_fluid_phases(
+    model: *const tl_model,
+    temperature: f64,
+    pressure: f64,
+    feed: *const f64,
+    n: usize,
+    options_json: *const c_char,
+    workspace: *mut tl_workspace,
+    record: *mut tl_record,
+) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        unsafe {
+            named(
+                "reaction_tp_fluid_phases",
+                options_json,
+                workspace,
+                model,
+                &[temperature, pressure],
+                feed,
+                n,
+                record,
+            )
+        }
+    })
+}

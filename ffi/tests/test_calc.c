@@ -241,6 +241,22 @@ int main(void) {
     CHECK(tl_reaction_uv(gas, 1.0e12, v, n0, 4, NULL, NULL, rec) == TL_STATUS_NO_SOLUTION, "unreachable energy");
     tl_model_free(gas);
   }
+  /* Reaction and condensation together: water forms from H2 + O2 and condenses at 298 K. */
+  {
+    const char *sp[] = {"hydrogen", "oxygen", "nitrogen", "water"};
+    const tl_model *m4 = NULL;
+    OK(tl_model_new(sp, 4, TL_CUBIC_PENG_ROBINSON, &m4));
+    const double n0[4] = {2.0, 1.0, 4.0, 0.0};
+    OK(tl_reaction_tp_fluid_phases(m4, 298.15, 1.0e5, n0, 4, NULL, NULL, rec));
+    double nph = 0;
+    char kind[16];
+    OK(tl_record_number(rec, "num_phases", &nph));
+    OK(tl_record_text(rec, "phase_kinds", 1, kind, sizeof kind, &needed));
+    CHECK(nph == 2.0 && strcmp(kind, "liquid") == 0, "a liquid condenses");
+    CHECK(tl_reaction_tp_fluid_phases(m4, 298.15, 1.0e5, n0, 3, NULL, NULL, rec) == TL_STATUS_INVALID_INPUT,
+          "feed length");
+    tl_model_free(m4);
+  }
 
   tl_result_free(res);
   tl_record_free(rec);

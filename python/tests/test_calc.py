@@ -210,3 +210,16 @@ def test_constant_volume_explosion_by_name():
     assert t.pressure == pytest.approx(e.pressure, rel=1e-9)
     with pytest.raises(tl.InvalidInputError):
         tl.reaction_tv(air, 2000.0, -1.0, feed, extra_species=["OH", "H", "O", "NO"])
+
+
+def test_reactive_split_by_name():
+    """H2 + O2 (2:1) with N2 at 298.15 K, 1 bar (Peng-Robinson): water forms and condenses; the
+    vapour's water fugacity equals the liquid's (equal potentials are checked in the core's
+    tests); at 400 K the same feed stays one phase."""
+    m = tl.Model(["hydrogen", "oxygen", "nitrogen", "water"])
+    r = tl.reaction_tp_fluid_phases(m, 298.15, 1e5, [2.0, 1.0, 4.0, 0.0])
+    assert r.num_phases == 2 and r.phase_kinds == ["vapor", "liquid"]
+    assert r.compositions[1, 3] > 0.999 and r.one_phase_min_tpd < 0 and r.certificate > -1e-9
+    assert r.amounts[3] == pytest.approx(2.0, rel=1e-9)
+    hot = tl.reaction_tp_fluid_phases(m, 400.0, 1e5, [2.0, 1.0, 4.0, 0.0])
+    assert hot.num_phases == 1 and hot.stable

@@ -26,7 +26,9 @@ mod record;
 
 pub use record::{Column, ColumnData, Columns, Field, Record, Value};
 
-use crate::equilibrium::reaction::{ReactionContext, ReactionOptions, ReactionResult, ReactionSystem};
+use crate::equilibrium::reaction::{
+    ReactionContext, ReactionOptions, ReactionResult, ReactionSystem, ReactivePhaseResult,
+};
 use crate::equilibrium::{
     CriticalOptions, EnvelopeOptions, EnvelopePoint, FlashContext, FlashOptions, FlashResult, FlashSensitivities,
     PhaseEnvelope, SensitivityWork, StateFlashContext, StateFlashOptions, StateFlashResult, StateSpec, critical_point,
@@ -340,6 +342,12 @@ fn reaction(name: &'static str, o: &Options, ws: &mut Workspace, m: &Model, a: &
         return Err(Error::invalid("species", "no reaction system"));
     };
     let gas: Option<&dyn FluidModel> = if o.real_gas { Some(m) } else { None };
+    if name == "reaction_tp_fluid_phases" {
+        let r = ctx.equilibrate_tp_fluid_phases(sys, m, a[0], a[1], feed, &o.solver)?;
+        let mut rec = Record::new(name);
+        reactive_phase_fields(&mut rec, sys, &r);
+        return Ok(rec);
+    }
     let r = match name {
         "reaction_tp" => ctx.equilibrate_tp(sys, gas, a[0], a[1], feed, &o.solver)?,
         "reaction_hp" => ctx.equilibrate_hp(sys, gas, a[0], a[1], feed, &o.solver)?,
@@ -380,6 +388,39 @@ fn reaction_fields(rec: &mut Record, sys: &ReactionSystem, r: &ReactionResult) {
         .texts(
             "excluded_species",
             c.excluded.iter().map(|e| format!("{}: {}", e.name, e.reason)).collect(),
+        );
+}
+
+/// The fields of a reaction equilibrium split between fluid phases.
+fn reactive_phase_fields(rec: &mut Record, sys: &ReactionSystem, r: &ReactivePhaseResult) {
+    rec.number("temperature", "K", r.temperature)
+        .number("pressure", "Pa", r.pressure)
+        .texts("species", sys.species().iter().map(|s| s.name.clone()).collect())
+        .count("num_phases", r.phases.len())
+        .texts("phase_kinds", r.phases.iter().map(|p| p.kind.to_string()).collect())
+        .numbers("phase_amounts", "mol", r.phases.iter().map(|p| p.amount).collect())
+        .table(
+            "compositions",
+            "1",
+            r.phases.iter().map(|p| p.mole_fractions.clone()).collect(),
+        )
+        .numbers(
+            "molar_volumes",
+            "m3/mol",
+            r.phases.iter().map(|p| p.molar_volume).collect(),
+        )
+        .numbers("amounts", "mol", r.amounts.clone())
+        .texts("elements", sys.elements().to_vec())
+        .numbers("element_potentials", "J/mol", r.element_potentials.clone())
+        .number("gibbs_energy", "J", r.gibbs)
+        .number("one_phase_min_tpd", "1", r.one_phase_min_tpd)
+        .number("certificate", "1", r.min_tpd)
+        .flag("stable", r.stable)
+        .number("element_residual", "1", r.element_residual)
+        .count("iterations", r.iterations)
+        .texts(
+            "excluded_species",
+            r.excluded.iter().map(|e| format!("{}: {}", e.name, e.reason)).collect(),
         );
 }
 
@@ -590,6 +631,13 @@ pub static CALCULATIONS: &[Calculation] = &[
         "chemical equilibrium at given temperature and pressure: the least Gibbs energy under the \
          element balances (Gordon & McBride 1994 Lagrangian Newton); feed = the model's \
          components, then the extra species",
+        &[T_ARG, P_ARG],
+    ),
+    reaction_calculation(
+        "reaction_tp_fluid_phases",
+        "chemical and phase equilibrium together at given temperature and pressure: the reacting \
+         mixture's stability test and, where it fails, the split into two fluid phases of the \
+         model (e.g. water or methanol condensing)",
         &[T_ARG, P_ARG],
     ),
     reaction_calculation(

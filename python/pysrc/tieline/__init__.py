@@ -54,6 +54,7 @@ from ._named import (
     reaction_hp,
     reaction_sp,
     reaction_tp,
+    reaction_tp_fluid_phases,
     reaction_tv,
     reaction_uv,
 )
@@ -119,6 +120,7 @@ __all__ = [
     "reaction_sp",
     "reaction_tv",
     "reaction_uv",
+    "reaction_tp_fluid_phases",
     "calculations",
     "describe",
     "Record",

@@ -13,7 +13,7 @@ from typing import Any, Optional
 from ._calc import calculate
 from ._core import Model
 
-__all__ = ["flash_ph", "flash_ps", "flash_tv", "flash_uv", "flash_sensitivities", "phase_envelope", "critical_point", "reaction_tp", "reaction_hp", "reaction_sp", "reaction_tv", "reaction_uv"]
+__all__ = ["flash_ph", "flash_ps", "flash_tv", "flash_uv", "flash_sensitivities", "phase_envelope", "critical_point", "reaction_tp", "reaction_hp", "reaction_sp", "reaction_tv", "reaction_uv", "reaction_tp_fluid_phases"]
 
 
 def flash_sensitivities(
@@ -200,3 +200,19 @@ reaction_hp.__doc__ = _REACTION_DOC.format(
     title="Chemical equilibrium at given pressure (Pa) and total enthalpy (J): the adiabatic flame.")
 reaction_sp.__doc__ = _REACTION_DOC.format(
     title="Chemical equilibrium at given pressure (Pa) and total entropy (J/K): isentropic expansion.")
+
+
+def reaction_tp_fluid_phases(model: Model, temperature: Any, pressure: Any, feed: Any, **kw: Any) -> Any:
+    """Chemical and phase equilibrium together at given temperature (K) and pressure (Pa): the
+    reacting mixture's tangent-plane stability test (at the equilibrium the element-potential
+    plane is the phase's tangent plane) and, where it fails, the split into two fluid phases
+    of the model (a condensing water or methanol liquid), by the Gordon & McBride Newton
+    extended to two phases. The species are the model's components (the gas is real: ln φ
+    from the model); pure condensed species are not used here.
+
+    Fields: ``num_phases``, ``phase_kinds``, ``phase_amounts`` (mol), ``compositions`` (one
+    row per phase), ``molar_volumes``, ``amounts`` (totals, mol), ``element_potentials``
+    (J/mol), ``one_phase_min_tpd`` (the one-phase test), ``certificate`` (the test of the
+    answer, ≥ 0 up to round-off at the minimum), ``stable``.
+    """
+    return calculate("reaction_tp_fluid_phases", model, temperature, pressure, feed=feed, **kw)

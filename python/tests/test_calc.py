@@ -223,3 +223,16 @@ def test_reactive_split_by_name():
     assert r.amounts[3] == pytest.approx(2.0, rel=1e-9)
     hot = tl.reaction_tp_fluid_phases(m, 400.0, 1e5, [2.0, 1.0, 4.0, 0.0])
     assert hot.num_phases == 1 and hot.stable
+
+
+def test_the_package_version_is_the_crates():
+    """The wheel's version, the compiled module's and the workspace Cargo.toml's agree."""
+    import importlib.metadata
+    import re
+
+    from conftest import ROOT
+
+    cargo = (ROOT / "Cargo.toml").read_text()
+    version = re.search(r'^version = "([0-9.]+)"', cargo, re.M).group(1)
+    assert tl.__version__ == version
+    assert importlib.metadata.version("tieline") == version

@@ -126,16 +126,26 @@ pub unsafe extern "C" fn tl_plan_new(
     ffi_boundary!({
         // SAFETY: caller contract.
         let (name, out) = unsafe { (c_str(name, "name")?, Out::new(out, "out")?) };
-        let opts = if options_json.is_null() {
-            None
-        } else {
-            // SAFETY: caller contract.
-            Some(unsafe { c_str(options_json, "options_json")? })
-        };
-        let plan = Plan::new(name, opts)?;
+        // SAFETY: caller contract.
+        let plan = unsafe { plan_from_c(name, options_json)? };
         out.set(new_box::<tl_plan>(plan));
         Ok(())
     })
+}
+
+/// The plan of calculation `name` with options from a nullable JSON string: shared by
+/// [`tl_plan_new`] and the named conveniences.
+///
+/// # Safety
+/// `options_json` must be NULL or a NUL-terminated string.
+pub(crate) unsafe fn plan_from_c(name: &str, options_json: *const c_char) -> FfiResult<Plan> {
+    let opts = if options_json.is_null() {
+        None
+    } else {
+        // SAFETY: caller contract.
+        Some(unsafe { c_str(options_json, "options_json")? })
+    };
+    Ok(Plan::new(name, opts)?)
 }
 
 /// Releases a plan. NULL is accepted and ignored. Must not be called twice.

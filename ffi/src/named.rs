@@ -7,7 +7,6 @@ use crate::boundary::*;
 use crate::calc::{tl_record, tl_workspace};
 use crate::model::tl_model;
 use std::ffi::c_char;
-use tieline::calc::Plan;
 
 /// Runs calculation `name` with options from a nullable JSON string.
 ///
@@ -23,13 +22,8 @@ unsafe fn named(
     nc: usize,
     record: *mut tl_record,
 ) -> FfiResult {
-    let opts = if options_json.is_null() {
-        None
-    } else {
-        // SAFETY: caller contract.
-        Some(unsafe { c_str(options_json, "options_json")? })
-    };
-    let plan = Plan::new(name, opts)?;
+    // SAFETY: caller contract.
+    let plan = unsafe { crate::calc::plan_from_c(name, options_json)? };
     // SAFETY: caller contract.
     unsafe { crate::calc::run_plan(&plan, workspace, model, args, feed, nc, record) }
 }

@@ -330,13 +330,20 @@ fn reaction(name: &'static str, o: &Options, ws: &mut Workspace, m: &Model, a: &
         return Err(wrong_options("reaction-equilibrium"));
     };
     let nc = m.num_components();
-    let mut names: Vec<String> = (0..nc).map(|i| m.component_name(i).to_string()).collect();
-    names.extend(o.extra_species.iter().cloned());
-    let fresh = !matches!(&ws.reaction, Some((key, _, _)) if *key == names);
-    if fresh {
+    // The species: the model's components, then the extra ones. The system of the last call
+    // is reused (with its warm start) when they are the same, compared without allocating.
+    let species = || {
+        (0..nc)
+            .map(|i| m.component_name(i))
+            .chain(o.extra_species.iter().map(String::as_str))
+    };
+    let same = matches!(&ws.reaction, Some((key, _, _))
+        if key.len() == nc + o.extra_species.len() && key.iter().map(String::as_str).eq(species()));
+    if !same {
+        let names: Vec<String> = species().map(str::to_string).collect();
         let sys = ReactionSystem::from_names(&names)?;
         let ctx = ReactionContext::new(&sys);
-        ws.reaction = Some((names.clone(), sys, ctx));
+        ws.reaction = Some((names, sys, ctx));
     }
     let Some((_, sys, ctx)) = &mut ws.reaction else {
         return Err(Error::invalid("species", "no reaction system"));

@@ -153,8 +153,15 @@ def _broadcast(
 ) -> Tuple[Tuple[int, ...], List[np.ndarray], np.ndarray, np.ndarray]:
     """Broadcasts coordinate arrays with the feed rows: (shape, flat coords, flat feeds
     (1 or N rows), the feed as stored in results)."""
+    return _broadcast_rows(_feed(model, feed), *coords)
+
+
+def _broadcast_rows(
+    z: np.ndarray, *coords: Tuple[Any, str]
+) -> Tuple[Tuple[int, ...], List[np.ndarray], np.ndarray, np.ndarray]:
+    """As :func:`_broadcast`, for feed rows ``z`` already checked (their last axis may be
+    wider than the model's components, as for the reaction calculations' extra species)."""
     arrays = [_array(c, what) for c, what in coords]
-    z = _feed(model, feed)
     try:
         shape = np.broadcast_shapes(*(a.shape for a in arrays), z.shape[:-1])
     except ValueError:
@@ -165,7 +172,7 @@ def _broadcast(
             "last axis is the component axis)",
         ) from None
     flat = [np.ascontiguousarray(np.broadcast_to(a, shape), dtype=np.float64).reshape(-1) for a in arrays]
-    nc = model.num_components
+    nc = z.shape[-1]
     if z.ndim == 1:
         zf = np.ascontiguousarray(z).reshape(1, nc)
         stored = z.copy()

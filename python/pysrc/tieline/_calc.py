@@ -15,6 +15,19 @@ from typing import Any, Dict, List, Optional, Tuple
 import numpy as np
 
 from . import _core
+from ._api import (
+    _array,
+    _broadcast_rows,
+    _check_model,
+    _check_progress,
+    _check_threads,
+    _count,
+    _failures,
+    _feed,
+    _is_scalar,
+    _on_error,
+    _scalar,
+)
 from ._core import Model, Record
 from ._errors import _invalid
 
@@ -119,34 +132,6 @@ class Sweep:
         return f"Sweep({self.kind}, shape={self.shape}, fields={len(self._columns)}, failures={len(self.failures)})"
 
 
-def _broadcast_rows(z: np.ndarray, *coords: Tuple[Any, str]) -> Tuple[Tuple[int, ...], List[np.ndarray], np.ndarray]:
-    """The coordinates broadcast with the leading axes of the feed rows ``z`` (already checked):
-    the shape, the flat coordinates, and the feeds as 1 or N contiguous rows."""
-    from ._api import _array
-
-    arrays = [_array(c, what) for c, what in coords]
-    try:
-        shape = np.broadcast_shapes(*(a.shape for a in arrays), z.shape[:-1])
-    except ValueError:
-        shapes = ", ".join(f"{what} {a.shape}" for a, (_, what) in zip(arrays, coords))
-        raise _invalid(
-            "shapes", f"{shapes} and feed {z.shape} do not broadcast together (numpy rules; the feed's last axis is the component axis)"
-        ) from None
-    flat = [np.ascontiguousarray(np.broadcast_to(a, shape), dtype=np.float64).reshape(-1) for a in arrays]
-    width = z.shape[-1]
-    if z.ndim == 1:
-        zf = np.ascontiguousarray(z, dtype=np.float64).reshape(1, width)
-    else:
-        zf = np.ascontiguousarray(np.broadcast_to(z, tuple(shape) + (width,)), dtype=np.float64).reshape(-1, width)
-    return tuple(shape), flat, zf
-
-
-def _is_scalar(x: Any) -> bool:
-    from ._api import _is_scalar as s
-
-    return s(x)
-
-
 def calculate(
     name: str,
     model: Model,
@@ -184,17 +169,6 @@ def calculate(
         A :class:`Record` when every argument is a scalar and the feed one row, else a
         :class:`Sweep`.
     """
-    from ._api import (
-        _array,
-        _check_model,
-        _check_progress,
-        _check_threads,
-        _count,
-        _failures,
-        _feed,
-        _on_error,
-        _scalar,
-    )
 
     _check_model(model)
     spec = describe(name)
@@ -224,7 +198,7 @@ def calculate(
     raise_errors = _on_error(on_error)
     block = _count("block", block, 1, _core.MAX_POINTS)
     coords = [(a, s[0]) for a, s in zip(args, argspec)]
-    shape, flat, zf = _broadcast_rows(z, *coords)
+    shape, flat, zf, _stored = _broadcast_rows(z, *coords)
     npts = int(np.prod(shape)) if shape else 1
     if npts > _core.MAX_POINTS:
         raise _invalid("points", f"{npts} points in one call; at most {_core.MAX_POINTS} are allowed")

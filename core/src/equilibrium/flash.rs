@@ -26,7 +26,7 @@ use super::multiphase::{ThreeOutcome, ThreePhase, three_phase};
 use super::rachford_rice;
 use super::stability::{StabilityOptions, StabilityResult, stability_with};
 use crate::error::{Error, Result, check, num};
-use crate::model::{FluidModel, LnPhi, Need, PhaseKind, RootChoice, ln_phi};
+use crate::model::{FluidModel, LnPhi, Need, PhaseKind, RootChoice};
 use crate::numerics::linalg::{cholesky_solve, shifted_cholesky_solve};
 use serde::{Deserialize, Serialize};
 
@@ -514,8 +514,7 @@ impl FlashContext {
             // Retry: K from the new stationary point against the feed.
             let w = self.cert.points[0].composition.clone();
             let z = self.ws.z.clone();
-            ln_phi(
-                model,
+            model.phase_ln_phi(
                 t,
                 p,
                 &z,
@@ -524,8 +523,7 @@ impl FlashContext {
                 &mut self.ws.fw,
                 &mut self.ws.phi_a,
             )?;
-            ln_phi(
-                model,
+            model.phase_ln_phi(
                 t,
                 p,
                 &w,
@@ -557,26 +555,8 @@ impl FlashContext {
         let nc = self.nc;
         let ws = &mut self.ws;
         let s = &mut self.split;
-        ln_phi(
-            model,
-            t,
-            p,
-            &s.x,
-            RootChoice::Stable,
-            Need::VALUES,
-            &mut ws.fw,
-            &mut s.phi_x,
-        )?;
-        ln_phi(
-            model,
-            t,
-            p,
-            &s.y,
-            RootChoice::Stable,
-            Need::VALUES,
-            &mut ws.fw,
-            &mut s.phi_y,
-        )?;
+        model.phase_ln_phi(t, p, &s.x, RootChoice::Stable, Need::VALUES, &mut ws.fw, &mut s.phi_x)?;
+        model.phase_ln_phi(t, p, &s.y, RootChoice::Stable, Need::VALUES, &mut ws.fw, &mut s.phi_y)?;
         s.gibbs = gibbs(&ws.z, s);
         let mut err = 0.0f64;
         for i in 0..nc {
@@ -865,8 +845,7 @@ impl FlashContext {
             if *root == RootChoice::Stable {
                 continue;
             }
-            ln_phi(
-                model,
+            model.phase_ln_phi(
                 t,
                 p,
                 comp,
@@ -918,8 +897,8 @@ impl FlashContext {
         }
         // Each phase stays on the root it took at the previous step (one evaluation with
         // derivatives instead of two); `newton` re-checks the choice at convergence.
-        ln_phi(model, t, p, &s.x, s.root_x, need, &mut ws.fw, &mut s.phi_x)?;
-        ln_phi(model, t, p, &s.y, s.root_y, need, &mut ws.fw, &mut s.phi_y)?;
+        model.phase_ln_phi(t, p, &s.x, s.root_x, need, &mut ws.fw, &mut s.phi_x)?;
+        model.phase_ln_phi(t, p, &s.y, s.root_y, need, &mut ws.fw, &mut s.phi_y)?;
         if s.root_x == RootChoice::Stable {
             s.root_x = s.phi_x.root;
         }
@@ -1234,16 +1213,7 @@ impl FlashContext {
             let z = &ws.z;
             // The feed's stability test has evaluated it already at this (T, p).
             if !self.feed_evaluated {
-                ln_phi(
-                    model,
-                    t,
-                    p,
-                    z,
-                    RootChoice::Stable,
-                    Need::VALUES,
-                    &mut ws.fw,
-                    &mut ws.phi_feed,
-                )?;
+                model.phase_ln_phi(t, p, z, RootChoice::Stable, Need::VALUES, &mut ws.fw, &mut ws.phi_feed)?;
             }
             let phi = &ws.phi_feed;
             let ph = &mut r.phases[0];
@@ -1284,7 +1254,7 @@ impl FlashContext {
         opts: &FlashOptions,
     ) -> Result<Option<TieLine>> {
         let nc = self.nc;
-        super::stability::wilson_ln_k(model, t, p, &mut self.ws.lnk);
+        model.estimate_ln_k(t, p, &mut self.ws.lnk);
         for _ in 0..opts.max_ss_iterations {
             if !self.eval_split(model, t, p)? {
                 return Ok(None);

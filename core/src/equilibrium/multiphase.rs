@@ -10,7 +10,7 @@
 //! finds a tangent plane below it (stepwise phase addition, Michelsen 1982b).
 
 use crate::error::{Error, Result};
-use crate::model::{FluidModel, FugacityWork, LnPhi, Need, RootChoice, ln_phi};
+use crate::model::{FluidModel, FugacityWork, LnPhi, Need, RootChoice};
 
 /// Number of phases handled here.
 pub(crate) const NP: usize = 3;
@@ -235,7 +235,7 @@ pub(crate) fn three_phase<M: FluidModel + ?Sized>(
     let mut residual = f64::INFINITY;
     for it in 1..=max_iter {
         for k in 0..NP {
-            ln_phi(model, t, p, &x[k], RootChoice::Stable, Need::VALUES, fw, &mut phi[k])?;
+            model.phase_ln_phi(t, p, &x[k], RootChoice::Stable, Need::VALUES, fw, &mut phi[k])?;
         }
         // Residual of the current compositions.
         residual = 0.0;

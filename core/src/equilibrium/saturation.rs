@@ -13,7 +13,7 @@
 //! "Saturation point calculations", Fluid Phase Equilib. 23 (1985) 181–192, from memory).
 
 use crate::error::{Error, Result, check, num};
-use crate::model::{FluidModel, FugacityWork, LnPhi, Need, RootChoice, ln_phi};
+use crate::model::{FluidModel, FugacityWork, LnPhi, Need, RootChoice};
 use crate::numerics::linalg::lu_solve;
 use crate::substance::R;
 use serde::{Deserialize, Serialize};
@@ -162,8 +162,8 @@ pub fn saturation_pressure<M: FluidModel + ?Sized>(
         })?;
         let next;
         if roots.count == 2 {
-            ln_phi(model, t, p, &n, RootChoice::Liquid, Need::VALUES, &mut w, &mut liq)?;
-            ln_phi(model, t, p, &n, RootChoice::Vapor, Need::VALUES, &mut w, &mut vap)?;
+            model.phase_ln_phi(t, p, &n, RootChoice::Liquid, Need::VALUES, &mut w, &mut liq)?;
+            model.phase_ln_phi(t, p, &n, RootChoice::Vapor, Need::VALUES, &mut w, &mut vap)?;
             let h = liq.ln_phi[i] - vap.ln_phi[i];
             resid = h.abs();
             if resid < opts.tolerance {
@@ -439,7 +439,7 @@ pub fn dew_temperature<M: FluidModel + ?Sized>(
 }
 
 fn wilson_k<M: FluidModel + ?Sized>(model: &M, t: f64, p: f64, out: &mut [f64]) {
-    crate::equilibrium::stability::wilson_ln_k(model, t, p, out);
+    model.estimate_ln_k(t, p, out);
 }
 
 /// Σ z K (bubble) or Σ z/K (dew) for Wilson K at (T, p), and its derivative in ln T.
@@ -711,8 +711,8 @@ fn solve_point<M: FluidModel + ?Sized>(
             temperature: newton && !p_unknown,
             pressure: newton && p_unknown,
         };
-        ln_phi(model, t, p, &z, bulk_root, need, &mut w, &mut bulk)?;
-        ln_phi(model, t, p, &xi, inc_root, need, &mut w, &mut inc)?;
+        model.phase_ln_phi(t, p, &z, bulk_root, need, &mut w, &mut bulk)?;
+        model.phase_ln_phi(t, p, &xi, inc_root, need, &mut w, &mut inc)?;
         let (phi_v, phi_l) = if bubble { (&inc, &bulk) } else { (&bulk, &inc) };
         resid = 0.0f64;
         for i in 0..nc {

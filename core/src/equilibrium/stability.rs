@@ -11,7 +11,7 @@
 
 use super::EquilibriumWork;
 use crate::error::{Result, check};
-use crate::model::{FluidModel, LnPhi, Need, RootChoice, ln_phi};
+use crate::model::{FluidModel, LnPhi, Need, RootChoice};
 use crate::numerics::linalg::shifted_cholesky_solve;
 use serde::{Deserialize, Serialize};
 
@@ -156,8 +156,7 @@ pub(crate) fn stability_with<M: FluidModel + ?Sized>(
     for i in 0..nc {
         ws.sz[i] = n[i] / ntot;
     }
-    ln_phi(
-        model,
+    model.phase_ln_phi(
         t,
         p,
         &ws.sz,
@@ -174,7 +173,7 @@ pub(crate) fn stability_with<M: FluidModel + ?Sized>(
             f64::NEG_INFINITY
         };
     }
-    wilson_ln_k(model, t, p, &mut ws.lnk);
+    model.estimate_ln_k(t, p, &mut ws.lnk);
     let trials = build_trials(model, opts, nc, ws);
     for k in 0..trials + extra_trials.len() {
         // Initial W for trial k.
@@ -498,7 +497,7 @@ fn eval_trial<M: FluidModel + ?Sized>(
     for (xi, wi) in x.iter_mut().zip(w) {
         *xi = wi / sw;
     }
-    ln_phi(model, t, p, x, RootChoice::Stable, need, fw, out)?;
+    model.phase_ln_phi(t, p, x, RootChoice::Stable, need, fw, out)?;
     if need.composition {
         // ∂ln φ/∂n at total amount ΣW: scale the unit-amount derivative by 1/ΣW.
         for v in out.dn.iter_mut() {

@@ -1,7 +1,10 @@
 //! [`Model`]: the closed set of built-in fluid models as one concrete, serialisable type,
 //! for bindings, files and worker processes.
 
-use super::{CriticalConstants, CubicEos, FluidModel, HelmholtzDerivs, Iapws95, Need, VolumeRoots};
+use super::{
+    CriticalConstants, CubicEos, FluidModel, FugacityWork, HelmholtzDerivs, Iapws95, LnPhi, Need, RootChoice,
+    VolumeRoots,
+};
 use crate::error::{Error, Result};
 use crate::substance::IdealGasSpecies;
 use serde::{Deserialize, Serialize};
@@ -77,6 +80,21 @@ impl FluidModel for Model {
     }
     fn ideal_gas(&self, t: f64, i: usize) -> Result<IdealGasSpecies> {
         delegate!(self, m => m.ideal_gas(t, i))
+    }
+    fn phase_ln_phi(
+        &self,
+        t: f64,
+        p: f64,
+        n: &[f64],
+        root: RootChoice,
+        need: Need,
+        work: &mut FugacityWork,
+        out: &mut LnPhi,
+    ) -> Result<()> {
+        delegate!(self, m => m.phase_ln_phi(t, p, n, root, need, work, out))
+    }
+    fn estimate_ln_k(&self, t: f64, p: f64, out: &mut [f64]) {
+        delegate!(self, m => m.estimate_ln_k(t, p, out))
     }
 }
 

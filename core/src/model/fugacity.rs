@@ -124,6 +124,8 @@ pub struct FugacityWork {
     pub derivs: HelmholtzDerivs,
     /// A second store, for comparing two volume roots without re-evaluation.
     pub spare: HelmholtzDerivs,
+    /// Excess-property storage, for models whose liquid comes from an excess Gibbs energy.
+    pub excess: super::ExcessDerivs,
 }
 
 impl FugacityWork {
@@ -132,6 +134,7 @@ impl FugacityWork {
         FugacityWork {
             derivs: HelmholtzDerivs::new(nc),
             spare: HelmholtzDerivs::new(nc),
+            excess: super::ExcessDerivs::new(nc),
         }
     }
 }

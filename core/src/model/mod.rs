@@ -6,6 +6,7 @@
 //! and their derivatives, energies, heat capacities, speed of sound — is derived from those in
 //! one place ([`fugacity`], [`state`]), so a new model plugs into every solver unchanged.
 
+pub mod activity;
 pub mod any;
 pub mod cubic;
 pub mod description;
@@ -15,6 +16,7 @@ pub mod if97;
 pub mod solid;
 pub mod state;
 
+pub use activity::{ExcessDerivs, ExcessGibbs};
 pub use any::Model;
 pub use cubic::{CubicEos, CubicKind, CubicSpec, KijMatrix};
 pub use description::{ModelDescription, model_from_json};
@@ -146,4 +148,30 @@ pub trait FluidModel: Send + Sync {
     /// Ideal-gas h, s (at 1e5 Pa) and cp of pure species `i` at T, in the reference state of
     /// [`crate::substance`]. May fail outside the correlation's validity range.
     fn ideal_gas(&self, t: f64, i: usize) -> Result<IdealGasSpecies>;
+
+    /// ln φ_i (and the requested derivatives) of a phase of amounts `n` (mol) at T (K) and
+    /// p (Pa) on the branch `root`, relative to the ideal gas at (T, p). Every phase
+    /// equilibrium solver evaluates phases through this method. The default evaluates the
+    /// residual Helmholtz energy ([`ln_phi`]); a model whose liquid is described by an excess
+    /// Gibbs energy overrides it (the liquid branch then gives ln(γ_i f_i°/p)).
+    #[allow(clippy::too_many_arguments)]
+    fn phase_ln_phi(
+        &self,
+        t: f64,
+        p: f64,
+        n: &[f64],
+        root: RootChoice,
+        need: Need,
+        work: &mut FugacityWork,
+        out: &mut LnPhi,
+    ) -> Result<()> {
+        ln_phi(self, t, p, n, root, need, work, out)
+    }
+
+    /// Starting estimates of ln K_i = ln(y_i/x_i) (vapour over liquid) at T (K) and p (Pa),
+    /// written to `out` (one per component). The default is Wilson's correlation from the
+    /// critical constants; models with vapour-pressure data use Raoult's law.
+    fn estimate_ln_k(&self, t: f64, p: f64, out: &mut [f64]) {
+        crate::equilibrium::stability::wilson_ln_k(self, t, p, out)
+    }
 }

@@ -38,7 +38,7 @@
 use super::{ExcludedSpecies, ReactionContext, ReactionOptions, ReactionSystem, Spec, check_model};
 use crate::equilibrium::stability::{StabilityOptions, stability};
 use crate::error::{Error, Result, check};
-use crate::model::{FluidModel, FugacityWork, LnPhi, Need, PhaseKind, RootChoice, ln_phi};
+use crate::model::{FluidModel, FugacityWork, LnPhi, Need, PhaseKind, RootChoice};
 use crate::numerics::linalg::lu_solve;
 use crate::substance::{P_STANDARD, R};
 use serde::{Deserialize, Serialize};
@@ -302,7 +302,7 @@ impl ReactionContext {
                 for i in 0..nc {
                     n[i] = if elig[i] { ph.lnn[i].exp() } else { 0.0 };
                 }
-                ln_phi(model, t, p, &n, RootChoice::Stable, Need::VALUES, &mut fw, &mut ph.phi)?;
+                model.phase_ln_phi(t, p, &n, RootChoice::Stable, Need::VALUES, &mut fw, &mut ph.phi)?;
                 for i in 0..nc {
                     if elig[i] {
                         ph.mu[i] = self.g0[gas[i]] + ph.lnn[i] - ph.lnn_tot + lnp + ph.phi.ln_phi[i];
@@ -467,7 +467,7 @@ impl ReactionContext {
         for ph in phases.iter_mut() {
             let n = ph.amounts();
             let tot: f64 = n.iter().sum();
-            ln_phi(model, t, p, &n, RootChoice::Stable, Need::VALUES, &mut fw, &mut ph.phi)?;
+            model.phase_ln_phi(t, p, &n, RootChoice::Stable, Need::VALUES, &mut fw, &mut ph.phi)?;
             let mut pa = vec![0.0; ns];
             let mut x = vec![0.0; ns];
             let mut red = vec![0.0; ns];

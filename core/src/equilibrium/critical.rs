@@ -26,6 +26,7 @@
 
 use crate::error::{Error, Result, check};
 use crate::model::{FluidModel, HelmholtzDerivs, Need};
+use crate::numerics::roots::brent;
 use crate::substance::R;
 use serde::{Deserialize, Serialize};
 
@@ -477,91 +478,6 @@ fn jacobi_eigen(a: &mut [f64], m: usize, vecs: &mut [f64], eig: &mut [f64]) -> u
     (0..m).min_by(|&x, &y| eig[x].total_cmp(&eig[y])).unwrap_or(0)
 }
 
-/// Brent's method (R. P. Brent, "Algorithms for Minimization without Derivatives", 1973,
-/// ch. 4) for a root of `f` in [a, b] with f(a) = fa, f(b) = fb of opposite signs, to
-/// |Δx| ≤ tol·max(1, |x|). Returns `None` if the bracket is invalid, `f` returns NaN, or
-/// `max_it` is reached.
-pub(crate) fn brent(
-    mut f: impl FnMut(f64) -> f64,
-    mut a: f64,
-    mut fa: f64,
-    mut b: f64,
-    mut fb: f64,
-    tol: f64,
-    max_it: usize,
-) -> Option<f64> {
-    if fa == 0.0 {
-        return Some(a);
-    }
-    if fb == 0.0 {
-        return Some(b);
-    }
-    if fa.signum() == fb.signum() || !fa.is_finite() || !fb.is_finite() {
-        return None;
-    }
-    let (mut c, mut fc) = (a, fa);
-    let mut d = b - a;
-    let mut e = d;
-    for _ in 0..max_it {
-        if fb.signum() == fc.signum() {
-            c = a;
-            fc = fa;
-            d = b - a;
-            e = d;
-        }
-        if fc.abs() < fb.abs() {
-            a = b;
-            b = c;
-            c = a;
-            fa = fb;
-            fb = fc;
-            fc = fa;
-        }
-        let tol1 = 2.0 * f64::EPSILON * b.abs() + 0.5 * tol * b.abs().max(1.0);
-        let xm = 0.5 * (c - b);
-        if xm.abs() <= tol1 || fb == 0.0 {
-            return Some(b);
-        }
-        if e.abs() >= tol1 && fa.abs() > fb.abs() {
-            let s = fb / fa;
-            let (mut p, mut q);
-            if a == c {
-                p = 2.0 * xm * s;
-                q = 1.0 - s;
-            } else {
-                let qq = fa / fc;
-                let r = fb / fc;
-                p = s * (2.0 * xm * qq * (qq - r) - (b - a) * (r - 1.0));
-                q = (qq - 1.0) * (r - 1.0) * (s - 1.0);
-            }
-            if p > 0.0 {
-                q = -q;
-            }
-            p = p.abs();
-            let min1 = 3.0 * xm * q - (tol1 * q).abs();
-            let min2 = (e * q).abs();
-            if 2.0 * p < min1.min(min2) {
-                e = d;
-                d = p / q;
-            } else {
-                d = xm;
-                e = d;
-            }
-        } else {
-            d = xm;
-            e = d;
-        }
-        a = b;
-        fa = fb;
-        b += if d.abs() > tol1 { d } else { tol1 * xm.signum() };
-        fb = f(b);
-        if !fb.is_finite() {
-            return None;
-        }
-    }
-    None
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -576,11 +492,5 @@ mod tests {
         assert!((e[k] - 1.0).abs() < 1e-14);
         assert!((v[k].abs() - 0.5f64.sqrt()).abs() < 1e-14);
         assert!((v[k] + v[2 + k]).abs() < 1e-14);
-    }
-
-    #[test]
-    fn brent_solves_a_cubic() {
-        let r = brent(|x| x * x * x - 2.0, 0.0, -2.0, 2.0, 6.0, 1e-15, 100).unwrap();
-        assert!((r - 2.0f64.cbrt()).abs() < 1e-14);
     }
 }

@@ -42,13 +42,14 @@
 //! two-phase equations: where a third phase would appear (a liquid–liquid split at low
 //! temperature) part of it is metastable; no stability test is made along it.
 
-use super::critical::{CriticalPoint, brent};
+use super::critical::CriticalPoint;
 use super::saturation::{SaturationOptions, bubble_temperature, dew_temperature};
 use super::{FlashContext, FlashOptions};
 use crate::error::{Error, Result, check};
 use crate::model::fugacity::evaluate_at_volume;
 use crate::model::{FluidModel, FugacityWork, LnPhi, Need};
 use crate::numerics::linalg::lu_solve;
+use crate::numerics::roots::brent;
 use serde::{Deserialize, Serialize};
 
 /// Highest pressure a trace may reach, Pa.

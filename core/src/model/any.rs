@@ -21,6 +21,9 @@ pub enum Model {
     Cubic(CubicEos),
     /// Water by IAPWS-95 (one component, "water"); `{"model": "iapws95"}`.
     Iapws95(Iapws95),
+    /// A γ–φ model: an activity-coefficient liquid with an ideal-gas or cubic vapour
+    /// (`{"model": "solution", ...}`, see [`super::SolutionModel`]).
+    Solution(super::SolutionModel),
 }
 
 impl Model {
@@ -41,6 +44,12 @@ impl From<CubicEos> for Model {
     }
 }
 
+impl From<super::SolutionModel> for Model {
+    fn from(m: super::SolutionModel) -> Self {
+        Model::Solution(m)
+    }
+}
+
 impl From<Iapws95> for Model {
     fn from(m: Iapws95) -> Self {
         Model::Iapws95(m)
@@ -52,6 +61,7 @@ macro_rules! delegate {
         match $self {
             Model::Cubic($m) => $e,
             Model::Iapws95($m) => $e,
+            Model::Solution($m) => $e,
         }
     };
 }

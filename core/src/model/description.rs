@@ -8,6 +8,17 @@
 //!  "components": ["methane", {"name": "hydrogen sulfide", "tc": 373.2, "pc": 8.94e6, "acentric": 0.1}],
 //!  "kij": [[0, 1, 0.08]], "volume_shift": "peneloux"}
 //! ```
+//!
+//! A γ–φ model ([`super::SolutionModel`]): the components by name, the liquid's activity model
+//! with its parameters by kind (its `components` may be left out: the model's are used),
+//! the vapour (`"ideal_gas"` or a cubic kind), and the options:
+//!
+//! ```json
+//! {"model": "solution", "components": ["methanol", "methyl acetate"],
+//!  "liquid": {"kind": "margules", "a": [[0, 2.771], [2.771, 0]], "b": [[0, -0.00523], [-0.00523, 0]],
+//!             "t_min": 273.15, "t_max": 360},
+//!  "vapor": "ideal_gas", "poynting": false}
+//! ```
 
 use super::{CubicEos, CubicKind, KijMatrix, Model};
 use crate::error::{Error, Result, num};
@@ -66,6 +77,26 @@ pub enum ModelDescription {
     },
     /// Water by IAPWS-95: `{"model": "iapws95"}` (no parameters).
     Iapws95 {},
+    /// A γ–φ model: activity-coefficient liquid, ideal-gas or cubic vapour.
+    Solution {
+        /// Component names (bank names, aliases or CAS numbers), in order.
+        components: Vec<String>,
+        /// The liquid's activity model as [`super::activity::ActivityModel`] reads it
+        /// (`{"kind": "nrtl", ...}`); `components` may be omitted.
+        liquid: serde_json::Value,
+        /// `"ideal_gas"` (default) or a cubic kind (`"peng_robinson"`, ...).
+        #[serde(default)]
+        vapor: Option<String>,
+        /// Vapour-pressure correlations, one per component, replacing the embedded file's.
+        #[serde(default)]
+        vapor_pressures: Option<Vec<crate::substance::VaporPressure>>,
+        /// Apply Poynting factors.
+        #[serde(default)]
+        poynting: bool,
+        /// Allow vapour-pressure correlations to be extrapolated beyond their ranges.
+        #[serde(default)]
+        extrapolate_vapor_pressures: bool,
+    },
 }
 
 impl ModelDescription {
@@ -138,6 +169,55 @@ impl ModelDescription {
                 Ok(Model::Cubic(m))
             }
             ModelDescription::Iapws95 {} => Ok(Model::Iapws95(super::Iapws95::new())),
+            ModelDescription::Solution {
+                components,
+                liquid,
+                vapor,
+                vapor_pressures,
+                poynting,
+                extrapolate_vapor_pressures,
+            } => {
+                let comps = bank.get_many(components)?;
+                let mut liquid = liquid.clone();
+                match liquid.as_object_mut() {
+                    Some(obj) => {
+                        if !obj.contains_key("components") {
+                            let names: Vec<serde_json::Value> = comps
+                                .iter()
+                                .map(|c| serde_json::Value::String(c.name.clone()))
+                                .collect();
+                            obj.insert("components".into(), serde_json::Value::Array(names));
+                        }
+                    }
+                    None => {
+                        return Err(Error::invalid(
+                            "liquid",
+                            "an object {\"kind\": \"nrtl\" | \"wilson\" | \"uniquac\" | \"margules\", ...} is required",
+                        ));
+                    }
+                }
+                let act: super::activity::ActivityModel = serde_json::from_value(liquid)
+                    .map_err(|e| Error::Data(format!("model description: liquid: {e}")))?;
+                let mut m = super::SolutionModel::new(comps.clone(), act)?
+                    .with_poynting(*poynting)
+                    .with_extrapolated_vapor_pressures(*extrapolate_vapor_pressures);
+                if let Some(vp) = vapor_pressures {
+                    m = m.with_vapor_pressures(vp.clone())?;
+                }
+                match vapor.as_deref() {
+                    None | Some("ideal_gas") | Some("ideal") => {}
+                    Some(k) => {
+                        let kind: CubicKind = serde_json::from_value(serde_json::Value::String(k.into())).map_err(|_| {
+                            Error::invalid(
+                                "vapor",
+                                format!("'{k}'; \"ideal_gas\" or a cubic kind (\"peng_robinson\", \"peng_robinson78\", \"soave_redlich_kwong\") is required"),
+                            )
+                        })?;
+                        m = m.with_vapor(super::VaporPhase::Cubic(CubicEos::new(kind, comps)?))?;
+                    }
+                }
+                Ok(Model::Solution(m))
+            }
         }
     }
 }
@@ -175,5 +255,21 @@ mod tests {
         // A full model round-trips through the same entry point.
         let full = m.to_json();
         assert_eq!(model_from_json(&full, DataBank::embedded()).unwrap(), m);
+    }
+
+    #[test]
+    fn solution_description_builds_and_round_trips() {
+        let text = r#"{"model": "solution", "components": ["methanol", "methyl acetate"],
+            "liquid": {"kind": "margules", "a": [[0, 2.771], [2.771, 0]], "b": [[0, -0.00523], [-0.00523, 0]],
+                       "t_min": 273.15, "t_max": 360},
+            "vapor": "peng_robinson", "poynting": true}"#;
+        let m = model_from_json(text, DataBank::embedded()).unwrap();
+        assert_eq!(m.num_components(), 2);
+        assert!(matches!(m, Model::Solution(_)));
+        let full = m.to_json();
+        assert!(full.contains("\"model\":\"solution\""));
+        assert_eq!(model_from_json(&full, DataBank::embedded()).unwrap(), m);
+        let bad = text.replace("peng_robinson", "van_der_waals");
+        assert!(model_from_json(&bad, DataBank::embedded()).is_err());
     }
 }

@@ -14,6 +14,7 @@ pub mod fugacity;
 pub mod iapws95;
 pub mod if97;
 pub mod solid;
+pub mod solution;
 pub mod state;
 
 pub use activity::{ActivityModel, ExcessDerivs, ExcessGibbs, Margules, Nrtl, Unifac, Uniquac, Wilson};
@@ -23,6 +24,7 @@ pub use description::{ModelDescription, model_from_json};
 pub use fugacity::{FugacityWork, LnPhi, Need, RootChoice, ln_phi};
 pub use iapws95::Iapws95;
 pub use solid::{FusionData, FusionSolid, IceIh, SolidModel, SolidProperties};
+pub use solution::{SolutionModel, VaporPhase};
 pub use state::{PhaseKind, PhaseState, Properties};
 
 use crate::error::Result;

@@ -10,12 +10,18 @@
 
 mod bank;
 pub(crate) mod ideal_gas;
+pub mod liquid_volume;
 pub mod species;
+pub mod vapor_pressure;
 pub use ideal_gas::IdealGasSpecies;
 
 pub use bank::{DataBank, Reference};
 pub use ideal_gas::{CpCorrelation, CpForm};
+pub use liquid_volume::RackettVolume;
 pub use species::{CpRange, Species, SpeciesBank, SpeciesPhase, StandardState};
+pub use vapor_pressure::{
+    AntoineUnits, LogBase, PressureUnit, TemperatureUnit, VaporPressure, VaporPressureBank, VaporPressureEquation,
+};
 
 use crate::error::{Error, Result, num};
 use serde::{Deserialize, Serialize};

@@ -67,6 +67,8 @@ pub struct HelmholtzDerivs {
 pub(crate) struct MixCache {
     pub(crate) key: Option<(u64, u64, bool)>,
     pub(crate) a: Vec<f64>,
+    /// Excess-property storage of a cubic model with an EOS/G^E mixing rule.
+    pub(crate) excess: ExcessDerivs,
 }
 
 impl HelmholtzDerivs {

@@ -16,7 +16,7 @@ pub mod if97;
 pub mod solid;
 pub mod state;
 
-pub use activity::{ExcessDerivs, ExcessGibbs};
+pub use activity::{ActivityModel, ExcessDerivs, ExcessGibbs, Margules, Nrtl};
 pub use any::Model;
 pub use cubic::{CubicEos, CubicKind, CubicSpec, KijMatrix};
 pub use description::{ModelDescription, model_from_json};

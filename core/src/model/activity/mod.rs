@@ -70,3 +70,270 @@ pub trait ExcessGibbs: Send + Sync {
     /// (`need.pressure` is ignored: the models are pressure-independent).
     fn excess(&self, t: f64, n: &[f64], need: Need, out: &mut ExcessDerivs) -> Result<()>;
 }
+
+mod margules;
+mod nrtl;
+
+pub use margules::{Margules, MargulesParams};
+pub use nrtl::{Nrtl, NrtlParams};
+
+use crate::error::{Error, check, num};
+use crate::substance::R;
+use serde::{Deserialize, Serialize};
+
+/// Any built-in excess-Gibbs model, as one concrete, serialisable type for bindings, files
+/// and other models that embed a liquid-solution model. Serialises as a JSON object with a
+/// `"kind"` tag, e.g. `{"kind": "nrtl", "components": [...], "a": [[...]], ...}`; the
+/// parameters are checked again when read.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(tag = "kind", rename_all = "snake_case")]
+pub enum ActivityModel {
+    /// Non-random two-liquid model ([`Nrtl`]).
+    Nrtl(Nrtl),
+    /// Two-suffix Margules model ([`Margules`]).
+    Margules(Margules),
+}
+
+impl ActivityModel {
+    /// Parses a JSON description (the form written by [`ActivityModel::to_json`]).
+    pub fn from_json(text: &str) -> Result<ActivityModel> {
+        serde_json::from_str(text).map_err(|e| Error::Data(format!("activity model description: {e}")))
+    }
+
+    /// The JSON description (round-trips through [`ActivityModel::from_json`]).
+    pub fn to_json(&self) -> String {
+        serde_json::to_string(self).unwrap_or_else(|e| format!("{{\"error\": \"{e}\"}}"))
+    }
+
+    /// The component names, in the model's order.
+    pub fn component_names(&self) -> &[String] {
+        delegate!(self, m => m.component_names())
+    }
+}
+
+macro_rules! delegate {
+    ($self:ident, $m:ident => $e:expr) => {
+        match $self {
+            ActivityModel::Nrtl($m) => $e,
+            ActivityModel::Margules($m) => $e,
+        }
+    };
+}
+use delegate;
+
+impl ExcessGibbs for ActivityModel {
+    fn num_components(&self) -> usize {
+        delegate!(self, m => m.num_components())
+    }
+    fn component_name(&self, i: usize) -> &str {
+        delegate!(self, m => m.component_name(i))
+    }
+    fn temperature_range(&self) -> (f64, f64) {
+        delegate!(self, m => m.temperature_range())
+    }
+    fn excess(&self, t: f64, n: &[f64], need: Need, out: &mut ExcessDerivs) -> Result<()> {
+        delegate!(self, m => m.excess(t, n, need, out))
+    }
+}
+
+impl From<Nrtl> for ActivityModel {
+    fn from(m: Nrtl) -> Self {
+        ActivityModel::Nrtl(m)
+    }
+}
+
+impl From<Margules> for ActivityModel {
+    fn from(m: Margules) -> Self {
+        ActivityModel::Margules(m)
+    }
+}
+
+// ---------------------------------------------------------------------------------------------
+// Checks and helpers shared by the models.
+
+/// Checks component names: at least one, none empty, no two alike.
+pub(crate) fn check_names(names: &[String]) -> Result<()> {
+    if names.is_empty() {
+        return Err(Error::invalid("components", "at least one component is required"));
+    }
+    for (i, a) in names.iter().enumerate() {
+        if a.trim().is_empty() {
+            return Err(Error::invalid("components", format!("name of component {i} is empty")));
+        }
+        if names[..i].contains(a) {
+            return Err(Error::invalid("components", format!("'{a}' is given twice")));
+        }
+    }
+    Ok(())
+}
+
+/// Checks a parameter temperature range (K): finite, 0 < lowest < highest.
+pub(crate) fn check_range(t_min: f64, t_max: f64) -> Result<()> {
+    if !(t_min > 0.0) || !t_min.is_finite() || !t_max.is_finite() || !(t_max > t_min) {
+        return Err(Error::invalid(
+            "temperature range",
+            format!(
+                "[{}, {}] K; finite limits with 0 < lowest < highest are required",
+                num(t_min),
+                num(t_max)
+            ),
+        ));
+    }
+    Ok(())
+}
+
+/// A square parameter matrix given as rows, flattened row-major; an empty matrix means all
+/// zeros. Every entry must be finite; with `zero_diagonal` the diagonal must be zero.
+pub(crate) fn square(what: &str, rows: &[Vec<f64>], nc: usize, zero_diagonal: bool) -> Result<Vec<f64>> {
+    if rows.is_empty() {
+        return Ok(vec![0.0; nc * nc]);
+    }
+    if rows.len() != nc || rows.iter().any(|r| r.len() != nc) {
+        return Err(Error::invalid(
+            what,
+            format!(
+                "a {nc}×{nc} matrix is required (one row of {nc} values per component); {} rows of lengths {:?} given",
+                rows.len(),
+                rows.iter().map(Vec::len).collect::<Vec<_>>()
+            ),
+        ));
+    }
+    let mut flat = Vec::with_capacity(nc * nc);
+    for (i, r) in rows.iter().enumerate() {
+        for (j, &v) in r.iter().enumerate() {
+            if !v.is_finite() {
+                return Err(Error::invalid(
+                    what,
+                    format!("entry ({i}, {j}) is {}; finite values are required", num(v)),
+                ));
+            }
+            if zero_diagonal && i == j && v != 0.0 {
+                return Err(Error::invalid(
+                    what,
+                    format!(
+                        "diagonal entry ({i}, {i}) is {}; a component does not interact with itself, so it must be 0",
+                        num(v)
+                    ),
+                ));
+            }
+            flat.push(v);
+        }
+    }
+    Ok(flat)
+}
+
+/// A row-major flat matrix as rows.
+pub(crate) fn rows(flat: &[f64], nc: usize) -> Vec<Vec<f64>> {
+    flat.chunks(nc.max(1)).map(<[f64]>::to_vec).collect()
+}
+
+/// A vector of per-component values: length `nc`, each finite and > 0.
+#[allow(dead_code)]
+pub(crate) fn positive_vector(what: &str, v: &[f64], nc: usize) -> Result<()> {
+    if v.len() != nc {
+        return Err(Error::invalid(
+            what,
+            format!("{} values given for {nc} components", v.len()),
+        ));
+    }
+    for (i, &x) in v.iter().enumerate() {
+        if !(x > 0.0) || !x.is_finite() {
+            return Err(Error::invalid(
+                what,
+                format!("value for component {i} is {}; finite values > 0 are required", num(x)),
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// Checks the arguments of [`ExcessGibbs::excess`] (T finite and in the model's range,
+/// amounts of the right length, finite, >= 0, positive sum) and sizes `out`. Returns the
+/// total amount (mol).
+pub(crate) fn check_call<M: ExcessGibbs + ?Sized>(model: &M, t: f64, n: &[f64], out: &mut ExcessDerivs) -> Result<f64> {
+    check::temperature(t)?;
+    let (lo, hi) = model.temperature_range();
+    if !(t >= lo && t <= hi) {
+        return Err(Error::OutsideValidity {
+            what: "temperature".into(),
+            value: t,
+            min: lo,
+            max: hi,
+            detail: "range of the liquid-solution model's parameters".into(),
+        });
+    }
+    let total = check::amounts(n, model.num_components())?;
+    out.resize(model.num_components());
+    Ok(total)
+}
+
+/// Fills h^E and s^E from g^E/RT and d(g^E/RT)/dT at T (K), then checks that every value
+/// asked for is finite (parameters that overflow at this temperature are a typed error, not
+/// a NaN returned).
+pub(crate) fn finish(t: f64, need: Need, dg_dt: f64, out: &mut ExcessDerivs) -> Result<()> {
+    let nc = out.ln_gamma.len();
+    let mut ok = out.g_excess.is_finite() && out.ln_gamma.iter().all(|v| v.is_finite());
+    if need.composition {
+        ok &= out.dn[..nc * nc].iter().all(|v| v.is_finite());
+    }
+    if need.temperature {
+        out.h_excess = -R * t * t * dg_dt;
+        out.s_excess = (out.h_excess - R * t * out.g_excess) / t;
+        ok &= out.dt.iter().all(|v| v.is_finite()) && out.h_excess.is_finite();
+    }
+    if ok {
+        Ok(())
+    } else {
+        Err(Error::OutsideValidity {
+            what: "temperature".into(),
+            value: t,
+            min: t,
+            max: t,
+            detail: "the model's parameters give non-finite activity coefficients at this temperature and composition"
+                .into(),
+        })
+    }
+}
+
+/// Takes `len` values of scratch storage (grown once, then reused).
+pub(crate) fn scratch(v: &mut Vec<f64>, len: usize) -> &mut [f64] {
+    if v.len() < len {
+        v.resize(len, 0.0);
+    }
+    &mut v[..len]
+}
+
+#[cfg(test)]
+pub(crate) mod testing;
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn json_round_trip_and_checked_on_read() {
+        let m: ActivityModel = Margules::binary(["methanol", "methyl acetate"], 2.771, -0.00523, (250.0, 400.0))
+            .unwrap()
+            .into();
+        let s = m.to_json();
+        assert!(s.starts_with("{\"kind\":\"margules\""), "{s}");
+        assert_eq!(ActivityModel::from_json(&s).unwrap(), m);
+        assert_eq!(m.component_names()[1], "methyl acetate");
+        let bad = s.replace("2.771", "NaN");
+        assert!(ActivityModel::from_json(&bad).is_err());
+        let bad = s.replace("\"t_min\":250.0", "\"t_min\":-1.0");
+        assert!(
+            ActivityModel::from_json(&bad)
+                .unwrap_err()
+                .to_string()
+                .contains("temperature range")
+        );
+        let n = "{\"kind\":\"nrtl\",\"components\":[\"x\",\"y\"],\"a\":[[0,1],[2,0]],\"c\":[[0,0.3],[0.3,0]],\"t_min\":200,\"t_max\":400}";
+        let m = ActivityModel::from_json(n).unwrap();
+        assert_eq!(m.num_components(), 2);
+        assert_eq!(ActivityModel::from_json(&m.to_json()).unwrap(), m);
+        let mut out = ExcessDerivs::new(2);
+        m.excess(300.0, &[1.0, 1.0], Need::ALL, &mut out).unwrap();
+        testing::check_model(&m, 300.0, &[1.0, 3.0]);
+    }
+}

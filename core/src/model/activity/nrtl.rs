@@ -1,0 +1,411 @@
+//! The NRTL (non-random two-liquid) model of Renon & Prausnitz (1968), *AIChE J.* 14:135–144.
+
+use super::{ExcessDerivs, ExcessGibbs, check_call, check_names, check_range, finish, rows, scratch, square};
+use crate::error::{Error, Result};
+use crate::model::Need;
+use serde::{Deserialize, Serialize};
+
+/// Celsius offset of the temperature form of the non-randomness α_ij, 273.15 K.
+const ALPHA_T_REF: f64 = 273.15;
+
+/// Parameters of an [`Nrtl`] model as a caller gives them (and as they serialise).
+///
+/// Temperature forms (T in K):
+/// - τ_ij = a_ij + b_ij/T + e_ij ln(T/K) + f_ij T (dimensionless; b in K, f in 1/K), τ_ii = 0,
+///   so the diagonals of a, b, e, f must be 0. With g_ij − g_jj = Δg_ij in J/mol,
+///   b_ij = Δg_ij/R and a = e = f = 0.
+/// - α_ij = c_ij + d_ij (T − 273.15 K) (c dimensionless, d in 1/K); the diagonal is unused.
+///   α is usually symmetric (α_ij = α_ji), but that is not required.
+///
+/// `a` and `c` must be given in full (nc rows of nc values); `b`, `d`, `e`, `f` may be empty,
+/// meaning all zero.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct NrtlParams {
+    /// Component names, in order.
+    pub components: Vec<String>,
+    /// a_ij, dimensionless.
+    pub a: Vec<Vec<f64>>,
+    /// b_ij, K.
+    #[serde(default)]
+    pub b: Vec<Vec<f64>>,
+    /// c_ij (α at 273.15 K), dimensionless.
+    pub c: Vec<Vec<f64>>,
+    /// d_ij, 1/K.
+    #[serde(default)]
+    pub d: Vec<Vec<f64>>,
+    /// e_ij (coefficient of ln T), dimensionless.
+    #[serde(default)]
+    pub e: Vec<Vec<f64>>,
+    /// f_ij, 1/K.
+    #[serde(default)]
+    pub f: Vec<Vec<f64>>,
+    /// Lowest temperature at which the parameters may be used, K.
+    pub t_min: f64,
+    /// Highest temperature at which the parameters may be used, K.
+    pub t_max: f64,
+}
+
+/// The NRTL model (Renon & Prausnitz 1968, *AIChE J.* 14:135):
+///
+/// g^E/RT = Σ_i x_i (Σ_j τ_ji G_ji x_j)/(Σ_k G_ki x_k),  G_ij = exp(−α_ij τ_ij),
+///
+/// with the temperature forms of [`NrtlParams`]. ln γ, its composition and temperature
+/// derivatives, h^E and s^E are analytic; evaluations allocate nothing after the first with
+/// the same [`ExcessDerivs`].
+///
+/// ```
+/// use tieline::model::activity::{Nrtl, NrtlParams};
+/// use tieline::model::{ExcessDerivs, ExcessGibbs, Need};
+/// let p = NrtlParams {
+///     components: vec!["a".into(), "b".into()],
+///     a: vec![vec![0.0, 0.5], vec![1.2, 0.0]],
+///     b: vec![],
+///     c: vec![vec![0.0, 0.3], vec![0.3, 0.0]],
+///     d: vec![],
+///     e: vec![],
+///     f: vec![],
+///     t_min: 250.0,
+///     t_max: 400.0,
+/// };
+/// let m = Nrtl::new(p).unwrap();
+/// let mut out = ExcessDerivs::new(2);
+/// m.excess(300.0, &[0.4, 0.6], Need::ALL, &mut out).unwrap();
+/// assert!(out.ln_gamma[0] > 0.0);
+/// ```
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(try_from = "NrtlParams", into = "NrtlParams")]
+pub struct Nrtl {
+    names: Vec<String>,
+    a: Vec<f64>,
+    b: Vec<f64>,
+    c: Vec<f64>,
+    d: Vec<f64>,
+    e: Vec<f64>,
+    f: Vec<f64>,
+    t_range: (f64, f64),
+}
+
+impl Nrtl {
+    /// Builds the model from caller-given parameter matrices. Wrong sizes, non-finite
+    /// entries, non-zero τ diagonals, repeated names or a bad temperature range are
+    /// [`Error::InvalidInput`].
+    pub fn new(p: NrtlParams) -> Result<Nrtl> {
+        check_names(&p.components)?;
+        check_range(p.t_min, p.t_max)?;
+        let nc = p.components.len();
+        Ok(Nrtl {
+            a: square("NRTL a", &p.a, nc, true)?,
+            b: square("NRTL b", &p.b, nc, true)?,
+            c: required(square("NRTL c (alpha)", &p.c, nc, false)?, &p.c)?,
+            d: square("NRTL d", &p.d, nc, false)?,
+            e: square("NRTL e", &p.e, nc, true)?,
+            f: square("NRTL f", &p.f, nc, true)?,
+            t_range: (p.t_min, p.t_max),
+            names: p.components,
+        })
+    }
+
+    /// The component names, in order.
+    pub fn component_names(&self) -> &[String] {
+        &self.names
+    }
+
+    /// The parameters (as [`Nrtl::new`] takes them).
+    pub fn params(&self) -> NrtlParams {
+        self.clone().into()
+    }
+
+    /// τ_ij and α_ij at T (K).
+    pub fn tau_alpha(&self, t: f64, i: usize, j: usize) -> (f64, f64) {
+        let nc = self.names.len();
+        let k = i * nc + j;
+        (
+            self.a[k] + self.b[k] / t + self.e[k] * t.ln() + self.f[k] * t,
+            self.c[k] + self.d[k] * (t - ALPHA_T_REF),
+        )
+    }
+}
+
+fn required(flat: Vec<f64>, given: &[Vec<f64>]) -> Result<Vec<f64>> {
+    if given.is_empty() {
+        return Err(Error::invalid(
+            "NRTL c (alpha)",
+            "the non-randomness matrix must be given (nc rows of nc values)",
+        ));
+    }
+    Ok(flat)
+}
+
+impl TryFrom<NrtlParams> for Nrtl {
+    type Error = Error;
+    fn try_from(p: NrtlParams) -> Result<Nrtl> {
+        Nrtl::new(p)
+    }
+}
+
+impl From<Nrtl> for NrtlParams {
+    fn from(m: Nrtl) -> NrtlParams {
+        let nc = m.names.len();
+        NrtlParams {
+            a: rows(&m.a, nc),
+            b: rows(&m.b, nc),
+            c: rows(&m.c, nc),
+            d: rows(&m.d, nc),
+            e: rows(&m.e, nc),
+            f: rows(&m.f, nc),
+            t_min: m.t_range.0,
+            t_max: m.t_range.1,
+            components: m.names,
+        }
+    }
+}
+
+impl ExcessGibbs for Nrtl {
+    fn num_components(&self) -> usize {
+        self.names.len()
+    }
+
+    fn component_name(&self, i: usize) -> &str {
+        &self.names[i]
+    }
+
+    fn temperature_range(&self) -> (f64, f64) {
+        self.t_range
+    }
+
+    fn excess(&self, t: f64, n: &[f64], need: Need, out: &mut ExcessDerivs) -> Result<()> {
+        let total = check_call(self, t, n, out)?;
+        let nc = self.names.len();
+        let nn = nc * nc;
+        let ExcessDerivs {
+            g_excess,
+            ln_gamma,
+            dn,
+            dt,
+            scratch: store,
+            ..
+        } = out;
+        let s = scratch(store, 5 * nn + 7 * nc);
+        let (tau, s) = s.split_at_mut(nn);
+        let (g, s) = s.split_at_mut(nn);
+        let (dtau, s) = s.split_at_mut(nn);
+        let (dg, s) = s.split_at_mut(nn);
+        let (m, s) = s.split_at_mut(nn);
+        let (x, s) = s.split_at_mut(nc);
+        let (sum_g, s) = s.split_at_mut(nc);
+        let (eps, s) = s.split_at_mut(nc);
+        let (dsum_g, s) = s.split_at_mut(nc);
+        let (deps, _) = s.split_at_mut(nc);
+
+        // τ_ij, G_ij and their temperature derivatives.
+        let ln_t = t.ln();
+        let dtc = t - ALPHA_T_REF;
+        for k in 0..nn {
+            let tk = self.a[k] + self.b[k] / t + self.e[k] * ln_t + self.f[k] * t;
+            let al = self.c[k] + self.d[k] * dtc;
+            tau[k] = tk;
+            g[k] = (-al * tk).exp();
+            if need.temperature {
+                dtau[k] = -self.b[k] / (t * t) + self.e[k] / t + self.f[k];
+                dg[k] = -(self.d[k] * tk + al * dtau[k]) * g[k];
+            }
+        }
+        for i in 0..nc {
+            x[i] = n[i] / total;
+        }
+        // S_i = Σ_k x_k G_ki, ε_i = Σ_k x_k τ_ki G_ki / S_i, M_ki = G_ki (τ_ki − ε_i)/S_i.
+        let mut ge = 0.0;
+        for i in 0..nc {
+            let (mut sg, mut stg) = (0.0, 0.0);
+            for k in 0..nc {
+                let gk = g[k * nc + i];
+                sg += x[k] * gk;
+                stg += x[k] * tau[k * nc + i] * gk;
+            }
+            sum_g[i] = sg;
+            eps[i] = stg / sg;
+            ge += x[i] * eps[i];
+        }
+        for k in 0..nc {
+            for i in 0..nc {
+                let idx = k * nc + i;
+                m[idx] = g[idx] * (tau[idx] - eps[i]) / sum_g[i];
+            }
+        }
+        *g_excess = ge;
+        // ln γ_i = ε_i + Σ_j x_j M_ij.
+        for i in 0..nc {
+            let mut v = eps[i];
+            for j in 0..nc {
+                v += x[j] * m[i * nc + j];
+            }
+            ln_gamma[i] = v;
+        }
+        if need.composition {
+            // ln γ_i is homogeneous of degree 0 in x, so ∂ln γ_i/∂n_k = (∂ln γ_i/∂x_k)/n_T with
+            // ∂ln γ_i/∂x_k = M_ki + M_ik − Σ_j x_j (G_ij M_kj + G_kj M_ij)/S_j (symmetric).
+            for i in 0..nc {
+                for k in i..nc {
+                    let mut v = m[k * nc + i] + m[i * nc + k];
+                    for j in 0..nc {
+                        v -= x[j] * (g[i * nc + j] * m[k * nc + j] + g[k * nc + j] * m[i * nc + j]) / sum_g[j];
+                    }
+                    v /= total;
+                    dn[i * nc + k] = v;
+                    dn[k * nc + i] = v;
+                }
+            }
+        }
+        let mut dge = 0.0;
+        if need.temperature {
+            for i in 0..nc {
+                let (mut ds, mut dc) = (0.0, 0.0);
+                for k in 0..nc {
+                    let idx = k * nc + i;
+                    ds += x[k] * dg[idx];
+                    dc += x[k] * (dtau[idx] * g[idx] + tau[idx] * dg[idx]);
+                }
+                dsum_g[i] = ds;
+                deps[i] = (dc - eps[i] * ds) / sum_g[i];
+                dge += x[i] * deps[i];
+            }
+            for i in 0..nc {
+                let mut v = deps[i];
+                for j in 0..nc {
+                    let idx = i * nc + j;
+                    v += x[j] * (dg[idx] * (tau[idx] - eps[j]) + g[idx] * (dtau[idx] - deps[j]) - m[idx] * dsum_g[j])
+                        / sum_g[j];
+                }
+                dt[i] = v;
+            }
+        }
+        finish(t, need, dge, out)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::model::activity::testing::check_model;
+
+    pub(crate) fn ternary() -> Nrtl {
+        // Invented parameters exercising every temperature term.
+        Nrtl::new(NrtlParams {
+            components: vec!["p".into(), "q".into(), "r".into()],
+            a: vec![vec![0.0, 0.4, -0.3], vec![1.1, 0.0, 0.7], vec![0.2, -0.5, 0.0]],
+            b: vec![vec![0.0, 120.0, 300.0], vec![-80.0, 0.0, 150.0], vec![400.0, 60.0, 0.0]],
+            c: vec![vec![0.0, 0.3, 0.2], vec![0.3, 0.0, 0.47], vec![0.2, 0.47, 0.0]],
+            d: vec![vec![0.0, 1e-3, 0.0], vec![1e-3, 0.0, -5e-4], vec![0.0, -5e-4, 0.0]],
+            e: vec![vec![0.0, 0.05, 0.0], vec![-0.02, 0.0, 0.01], vec![0.0, 0.03, 0.0]],
+            f: vec![vec![0.0, 0.0, 1e-4], vec![0.0, 0.0, 0.0], vec![-2e-4, 0.0, 0.0]],
+            t_min: 250.0,
+            t_max: 450.0,
+        })
+        .unwrap()
+    }
+
+    #[test]
+    fn nrtl_derivatives_and_identities() {
+        let m = ternary();
+        check_model(&m, 330.0, &[0.2, 0.5, 0.3]);
+        check_model(&m, 280.0, &[2.0, 0.1, 0.7]);
+        check_model(&m, 400.0, &[0.0, 1.0, 3.0]);
+    }
+
+    #[test]
+    fn nrtl_binary_closed_form() {
+        // Binary NRTL (Renon & Prausnitz 1968, eqs. for ln γ1, ln γ2):
+        // ln γ1 = x2² [τ21 (G21/(x1 + x2 G21))² + τ12 G12/(x2 + x1 G12)²].
+        let m = Nrtl::new(NrtlParams {
+            components: vec!["1".into(), "2".into()],
+            a: vec![vec![0.0, 0.0], vec![0.0, 0.0]],
+            b: vec![vec![0.0, 250.0], vec![600.0, 0.0]],
+            c: vec![vec![0.0, 0.3], vec![0.3, 0.0]],
+            d: vec![],
+            e: vec![],
+            f: vec![],
+            t_min: 200.0,
+            t_max: 500.0,
+        })
+        .unwrap();
+        let t: f64 = 320.0;
+        let (x1, x2) = (0.35, 0.65);
+        let (t12, t21) = (250.0 / t, 600.0 / t);
+        let (g12, g21) = ((-0.3 * t12).exp(), (-0.3 * t21).exp());
+        let l1 = x2 * x2 * (t21 * (g21 / (x1 + x2 * g21)).powi(2) + t12 * g12 / (x2 + x1 * g12).powi(2));
+        let l2 = x1 * x1 * (t12 * (g12 / (x2 + x1 * g12)).powi(2) + t21 * g21 / (x1 + x2 * g21).powi(2));
+        let mut out = ExcessDerivs::new(2);
+        m.excess(t, &[x1, x2], Need::VALUES, &mut out).unwrap();
+        assert!((out.ln_gamma[0] - l1).abs() < 1e-13);
+        assert!((out.ln_gamma[1] - l2).abs() < 1e-13);
+        // Infinite dilution: ln γ1^∞ = τ21 + τ12 G12.
+        m.excess(t, &[0.0, 1.0], Need::VALUES, &mut out).unwrap();
+        assert!((out.ln_gamma[0] - (t21 + t12 * g12)).abs() < 1e-13);
+        assert!(out.ln_gamma[1].abs() < 1e-15);
+    }
+
+    #[test]
+    fn nrtl_ideal_limit_and_bad_input() {
+        let z = vec![vec![0.0; 3]; 3];
+        let m = Nrtl::new(NrtlParams {
+            components: vec!["p".into(), "q".into(), "r".into()],
+            a: z.clone(),
+            b: vec![],
+            c: vec![vec![0.3; 3]; 3],
+            d: vec![],
+            e: vec![],
+            f: vec![],
+            t_min: 250.0,
+            t_max: 450.0,
+        })
+        .unwrap();
+        let mut out = ExcessDerivs::new(3);
+        m.excess(300.0, &[0.2, 0.3, 0.5], Need::ALL, &mut out).unwrap();
+        assert!(
+            out.ln_gamma
+                .iter()
+                .chain(out.dn.iter())
+                .chain(out.dt.iter())
+                .all(|v| *v == 0.0)
+        );
+        assert_eq!(out.g_excess, 0.0);
+        assert_eq!(out.h_excess, 0.0);
+
+        let t = ternary();
+        use crate::error::ErrorKind;
+        let k = |r: Result<()>| r.unwrap_err().kind();
+        assert_eq!(
+            k(t.excess(500.0, &[1.0, 1.0, 1.0], Need::VALUES, &mut out)),
+            ErrorKind::OutsideValidity
+        );
+        assert_eq!(
+            k(t.excess(f64::NAN, &[1.0, 1.0, 1.0], Need::VALUES, &mut out)),
+            ErrorKind::InvalidInput
+        );
+        assert_eq!(
+            k(t.excess(300.0, &[1.0, -1.0, 1.0], Need::VALUES, &mut out)),
+            ErrorKind::InvalidInput
+        );
+        assert_eq!(
+            k(t.excess(300.0, &[1.0, f64::INFINITY, 1.0], Need::VALUES, &mut out)),
+            ErrorKind::InvalidInput
+        );
+        assert_eq!(
+            k(t.excess(300.0, &[1.0, 1.0], Need::VALUES, &mut out)),
+            ErrorKind::InvalidInput
+        );
+        let mut p = t.params();
+        p.a[0][1] = f64::NAN;
+        assert_eq!(Nrtl::new(p).unwrap_err().kind(), ErrorKind::InvalidInput);
+        let mut p = t.params();
+        p.b.pop();
+        assert!(Nrtl::new(p).unwrap_err().to_string().contains("3×3"));
+        let mut p = t.params();
+        p.a[1][1] = 0.1;
+        assert_eq!(Nrtl::new(p).unwrap_err().kind(), ErrorKind::InvalidInput);
+        let mut p = t.params();
+        p.t_min = 500.0;
+        assert_eq!(Nrtl::new(p).unwrap_err().kind(), ErrorKind::InvalidInput);
+    }
+}

@@ -11,12 +11,18 @@
 //!
 //! and every derivative is analytic (chain rule through g, f, B and D).
 //!
+//! Instead of the van der Waals rule, the attraction parameter may come from an excess Gibbs
+//! energy model through the modified Huron–Vidal rules ([`MixingRule::Mhv1`],
+//! [`MixingRule::Mhv2`]); D then changes, and everything else (B, the volume dependence, the
+//! roots) stays as it is.
+//!
 //! References: D.-Y. Peng, D. B. Robinson, Ind. Eng. Chem. Fundam. 15 (1976) 59–64;
 //! D. B. Robinson, D.-Y. Peng, GPA Research Report RR-28 (1978) (κ for ω > 0.49, from memory);
 //! G. Soave, Chem. Eng. Sci. 27 (1972) 1197–1203; A. Péneloux, E. Rauzy, R. Fréze, Fluid
-//! Phase Equilib. 8 (1982) 7–23.
+//! Phase Equilib. 8 (1982) 7–23; M. L. Michelsen, Fluid Phase Equilib. 60 (1990) 213–219
+//! (MHV1); S. Dahl, M. L. Michelsen, AIChE J. 36 (1990) 1829–1836 (MHV2).
 
-use super::{CriticalConstants, ExcessGibbs, FluidModel, HelmholtzDerivs, MixCache, Need, VolumeRoots};
+use super::{ActivityModel, CriticalConstants, ExcessGibbs, FluidModel, HelmholtzDerivs, MixCache, Need, VolumeRoots};
 use crate::error::{Error, Result, check, num};
 use crate::numerics::roots::cubic_real_roots;
 use crate::substance::{Component, IdealGasSpecies, R};
@@ -209,6 +215,109 @@ impl KijMatrix {
     }
 }
 
+/// q1 of MHV1 for Soave–Redlich–Kwong, −0.593 (Michelsen, Fluid Phase Equilib. 60 (1990) 213).
+pub const MHV1_Q1_SRK: f64 = -0.593;
+/// q1 of MHV1 for Peng–Robinson, −0.53 (the value usually quoted with PR, e.g.
+/// Kontogeorgis & Coutsikos, Ind. Eng. Chem. Res. 51 (2012) 4119; from memory).
+pub const MHV1_Q1_PR: f64 = -0.53;
+/// (q1, q2) of MHV2 for Soave–Redlich–Kwong, (−0.478, −0.0047) (Dahl & Michelsen, AIChE J. 36
+/// (1990) 1829).
+pub const MHV2_Q_SRK: (f64, f64) = (-0.478, -0.0047);
+
+/// How the mixture's attraction parameter a is formed from the components' (the co-volume is
+/// always b = Σ x_i b_i). Serialises with a `"rule"` tag; a model description without one
+/// uses the van der Waals rule:
+///
+/// ```json
+/// {"rule": "mhv1", "activity": {"kind": "nrtl", "components": ["acetone", "water"], ...}}
+/// ```
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(tag = "rule", rename_all = "snake_case", deny_unknown_fields)]
+#[allow(clippy::large_enum_variant)]
+pub enum MixingRule {
+    /// van der Waals one-fluid: a = ΣΣ x_i x_j √(a_i a_j)(1 − k_ij(T)).
+    #[default]
+    VanDerWaals,
+    /// First-order modified Huron–Vidal (Michelsen 1990, Fluid Phase Equilib. 60:213):
+    /// α = Σ x_i α_i + (1/q1)[g^E/RT + Σ x_i ln(b/b_i)], α = a/(bRT), with g^E from the
+    /// activity model at zero pressure. k_ij are not used (they must be zero).
+    Mhv1 {
+        /// The liquid model; its components must be the equation's, in the same order.
+        activity: ActivityModel,
+        /// q1 (dimensionless, negative); default [`MHV1_Q1_SRK`] for SRK and [`MHV1_Q1_PR`]
+        /// for both Peng–Robinson forms.
+        #[serde(default, skip_serializing_if = "Option::is_none")]
+        q1: Option<f64>,
+    },
+    /// Second-order modified Huron–Vidal (Dahl & Michelsen 1990, AIChE J. 36:1829):
+    /// q1(α − Σ x_i α_i) + q2(α² − Σ x_i α_i²) = g^E/RT + Σ x_i ln(b/b_i), solved for the root
+    /// continuous with MHV1. k_ij are not used (they must be zero).
+    Mhv2 {
+        /// The liquid model; its components must be the equation's, in the same order.
+        activity: ActivityModel,
+        /// q1 (dimensionless, negative); default [`MHV2_Q_SRK`] for SRK. No default is built
+        /// in for Peng–Robinson: give q1 and q2.
+        #[serde(default, skip_serializing_if = "Option::is_none")]
+        q1: Option<f64>,
+        /// q2 (dimensionless, <= 0); default [`MHV2_Q_SRK`] for SRK.
+        #[serde(default, skip_serializing_if = "Option::is_none")]
+        q2: Option<f64>,
+    },
+}
+
+impl MixingRule {
+    /// Whether this is the van der Waals one-fluid rule.
+    pub fn is_van_der_waals(&self) -> bool {
+        matches!(self, MixingRule::VanDerWaals)
+    }
+
+    /// The activity model of an EOS/G^E rule.
+    pub fn activity(&self) -> Option<&ActivityModel> {
+        match self {
+            MixingRule::VanDerWaals => None,
+            MixingRule::Mhv1 { activity, .. } | MixingRule::Mhv2 { activity, .. } => Some(activity),
+        }
+    }
+
+    /// (q1, q2) of an EOS/G^E rule for the equation `kind`, defaults filled in and checked
+    /// (q1 < 0, q2 <= 0, finite); `None` for the van der Waals rule.
+    pub fn constants(&self, kind: CubicKind) -> Result<Option<(f64, f64)>> {
+        let q = match self {
+            MixingRule::VanDerWaals => return Ok(None),
+            MixingRule::Mhv1 { q1, .. } => (
+                q1.unwrap_or(match kind {
+                    CubicKind::SoaveRedlichKwong => MHV1_Q1_SRK,
+                    CubicKind::PengRobinson | CubicKind::PengRobinson78 => MHV1_Q1_PR,
+                }),
+                0.0,
+            ),
+            MixingRule::Mhv2 { q1, q2, .. } => match (kind, q1, q2) {
+                (_, Some(a), Some(b)) => (*a, *b),
+                (CubicKind::SoaveRedlichKwong, a, b) => (a.unwrap_or(MHV2_Q_SRK.0), b.unwrap_or(MHV2_Q_SRK.1)),
+                _ => {
+                    return Err(Error::invalid(
+                        "mixing",
+                        "MHV2 with Peng–Robinson needs both q1 and q2 (only the SRK constants of \
+                         Dahl & Michelsen 1990 are built in)",
+                    ));
+                }
+            },
+        };
+        if !(q.0.is_finite() && q.0 < 0.0 && q.1.is_finite() && q.1 <= 0.0) {
+            return Err(Error::invalid(
+                "mixing",
+                format!(
+                    "q1 = {}, q2 = {}; finite q1 < 0 and q2 <= 0 are required (the zero-pressure \
+                     liquid root's q(α) decreases with α)",
+                    num(q.0),
+                    num(q.1)
+                ),
+            ));
+        }
+        Ok(Some(q))
+    }
+}
+
 /// Plain, serialisable description of a cubic model: what a user writes in a JSON model file
 /// and what [`CubicEos`] serialises to.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -224,6 +333,9 @@ pub struct CubicSpec {
     /// Péneloux volume shifts c_i, m3/mol (none if absent): v = v_EOS − Σ x_i c_i.
     #[serde(default)]
     pub volume_shift: Option<Vec<f64>>,
+    /// The mixing rule (van der Waals if absent).
+    #[serde(default, skip_serializing_if = "MixingRule::is_van_der_waals")]
+    pub mixing: MixingRule,
 }
 
 /// A process-unique identity of a cubic model's parameter set: the key of the
@@ -281,6 +393,8 @@ pub struct CubicEos {
     d1: f64,
     d2: f64,
     has_k1: bool,
+    mixing: MixingRule,
+    q: (f64, f64),
     id: ParamId,
 }
 
@@ -294,6 +408,9 @@ impl TryFrom<CubicSpec> for CubicEos {
         if let Some(c) = s.volume_shift {
             eos = eos.with_volume_shift(c)?;
         }
+        if !s.mixing.is_van_der_waals() {
+            eos = eos.with_mixing(s.mixing)?;
+        }
         Ok(eos)
     }
 }
@@ -305,6 +422,7 @@ impl From<CubicEos> for CubicSpec {
             kij: Some(e.kij),
             volume_shift: e.has_shift.then_some(e.shift),
             components: e.components,
+            mixing: e.mixing,
         }
     }
 }
@@ -337,8 +455,57 @@ impl CubicEos {
             d1,
             d2,
             has_k1: false,
+            mixing: MixingRule::VanDerWaals,
+            q: (0.0, 0.0),
             id: ParamId::fresh(),
         })
+    }
+
+    /// Replaces the mixing rule. An EOS/G^E rule needs an activity model over the same
+    /// components in the same order (names compared without regard to case) and all k_ij
+    /// zero; its constants are checked ([`MixingRule::constants`]).
+    pub fn with_mixing(mut self, mixing: MixingRule) -> Result<Self> {
+        let q = mixing.constants(self.kind)?;
+        if let Some(act) = mixing.activity() {
+            let names = act.component_names();
+            let nc = self.components.len();
+            if names.len() != nc {
+                return Err(Error::invalid(
+                    "mixing",
+                    format!(
+                        "the activity model has {} components, the equation of state {nc}",
+                        names.len()
+                    ),
+                ));
+            }
+            for (i, (a, c)) in names.iter().zip(&self.components).enumerate() {
+                if !a.trim().eq_ignore_ascii_case(c.name.trim()) {
+                    return Err(Error::invalid(
+                        "mixing",
+                        format!(
+                            "component {i} is '{a}' in the activity model and '{}' in the equation of \
+                             state; the same components in the same order are required",
+                            c.name
+                        ),
+                    ));
+                }
+            }
+            if self.kij.k0.iter().chain(&self.kij.k1).any(|&k| k != 0.0) {
+                return Err(Error::invalid(
+                    "mixing",
+                    "k_ij are not used by an EOS/G^E mixing rule; they must all be zero",
+                ));
+            }
+        }
+        self.q = q.unwrap_or((0.0, 0.0));
+        self.mixing = mixing;
+        self.id = ParamId::fresh();
+        Ok(self)
+    }
+
+    /// The mixing rule.
+    pub fn mixing(&self) -> &MixingRule {
+        &self.mixing
     }
 
     /// Replaces the interaction parameters (validated: symmetric, finite, zero diagonal).
@@ -354,6 +521,7 @@ impl CubicEos {
             ));
         }
         kij.validate()?;
+        self.check_kij_allowed(&kij)?;
         self.has_k1 = kij.k1.iter().any(|&k| k != 0.0);
         self.kij = kij;
         self.id = ParamId::fresh();
@@ -363,9 +531,21 @@ impl CubicEos {
     /// Sets one pair k_ij = k_ji = k0 + k1·T.
     pub fn with_pair(mut self, i: usize, j: usize, k0: f64, k1: f64) -> Result<Self> {
         self.kij.set(i, j, k0, k1)?;
+        let k = self.kij.clone();
+        self.check_kij_allowed(&k)?;
         self.has_k1 = self.kij.k1.iter().any(|&k| k != 0.0);
         self.id = ParamId::fresh();
         Ok(self)
+    }
+
+    fn check_kij_allowed(&self, kij: &KijMatrix) -> Result<()> {
+        if !self.mixing.is_van_der_waals() && kij.k0.iter().chain(&kij.k1).any(|&k| k != 0.0) {
+            return Err(Error::invalid(
+                "k_ij",
+                "k_ij are not used by an EOS/G^E mixing rule; they must all be zero",
+            ));
+        }
+        Ok(())
     }
 
     /// Sets Péneloux volume shifts c_i (m3/mol): v = v_EOS − Σ x_i c_i. Fugacity
@@ -582,7 +762,11 @@ impl CubicEos {
 
     /// The EOS/G^E rule of this model, if any (`None`: van der Waals one-fluid mixing).
     fn ge_rule(&self) -> Option<GeRule<'_>> {
-        None
+        self.mixing.activity().map(|a| GeRule {
+            model: a,
+            q1: self.q.0,
+            q2: self.q.1,
+        })
     }
 
     /// D = n²a and B = Σ n_i b_i under an EOS/G^E mixing rule of the modified Huron–Vidal
@@ -1308,6 +1492,86 @@ mod ge_tests {
             let m = WithGe { eos: &e, rule: GeRule { model: &ge, q1, q2 } };
             let b: f64 = n.iter().zip(e.covolumes()).map(|(a, b)| a * b).sum();
             check_residual(&m, t, vfac * b, &n);
+        }
+    }
+
+    /// The public path: a [`CubicEos`] carrying an NRTL model (invented parameters with every
+    /// temperature form, so that the differenced second T-derivative is exercised).
+    fn nrtl_model(kind: CubicKind, mhv2: bool) -> CubicEos {
+        use crate::model::activity::{Nrtl, NrtlParams};
+        let act = ActivityModel::Nrtl(
+            Nrtl::new(NrtlParams {
+                components: NAMES.iter().map(|s| s.to_string()).collect(),
+                a: vec![vec![0.0, 0.4, -0.2], vec![0.1, 0.0, 0.5], vec![0.3, 0.2, 0.0]],
+                b: vec![
+                    vec![0.0, 150.0, 300.0],
+                    vec![-80.0, 0.0, 420.0],
+                    vec![200.0, 500.0, 0.0],
+                ],
+                c: vec![vec![0.0, 0.3, 0.2], vec![0.3, 0.0, 0.47], vec![0.2, 0.47, 0.0]],
+                d: vec![vec![0.0, 1e-4, 0.0], vec![1e-4, 0.0, -2e-4], vec![0.0, -2e-4, 0.0]],
+                e: vec![vec![0.0, 0.05, 0.0], vec![-0.02, 0.0, 0.0], vec![0.0, 0.01, 0.0]],
+                f: vec![vec![0.0, 0.0, 1e-4], vec![0.0, 0.0, 0.0], vec![-1e-4, 0.0, 0.0]],
+                t_min: 200.0,
+                t_max: 700.0,
+            })
+            .unwrap(),
+        );
+        let rule = if mhv2 {
+            MixingRule::Mhv2 {
+                activity: act,
+                q1: Some(-0.478),
+                q2: Some(-0.0047),
+            }
+        } else {
+            MixingRule::Mhv1 {
+                activity: act,
+                q1: None,
+            }
+        };
+        eos(kind).with_mixing(rule).unwrap()
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(32))]
+
+        #[test]
+        fn nrtl_mhv_helmholtz_derivatives_match_finite_differences(
+            kind in prop_oneof![Just(CubicKind::PengRobinson), Just(CubicKind::SoaveRedlichKwong)],
+            mhv2 in any::<bool>(),
+            t in 250.0f64..550.0,
+            vfac in 1.2f64..200.0,
+            n in prop::collection::vec(0.01f64..2.0, 3),
+        ) {
+            let m = nrtl_model(kind, mhv2);
+            let b: f64 = n.iter().zip(m.covolumes()).map(|(a, b)| a * b).sum();
+            check_residual(&m, t, vfac * b, &n);
+        }
+    }
+
+    /// At the ends of the activity model's temperature range the second T-derivative uses
+    /// one-sided differences; F_TT still matches.
+    #[test]
+    fn second_temperature_derivative_at_the_range_ends() {
+        let m = nrtl_model(CubicKind::PengRobinson, false);
+        let n = [0.3, 0.3, 0.4];
+        let b: f64 = n.iter().zip(m.covolumes()).map(|(a, b)| a * b).sum();
+        let v = 1.5 * b;
+        for t in [200.0, 700.0 - 1e-9] {
+            let mut d = HelmholtzDerivs::new(3);
+            m.residual(t, v, &n, Need::ALL, &mut d).unwrap();
+            let h = t * 1e-5;
+            let ft = |tt: f64| {
+                let mut e = HelmholtzDerivs::new(3);
+                m.residual(tt, v, &n, Need::ALL, &mut e).unwrap();
+                e.f_t
+            };
+            let fd = if t < 300.0 {
+                (-3.0 * ft(t) + 4.0 * ft(t + h) - ft(t + 2.0 * h)) / (2.0 * h)
+            } else {
+                (3.0 * ft(t) - 4.0 * ft(t - h) + ft(t - 2.0 * h)) / (2.0 * h)
+            };
+            assert!(rel(d.f_tt, fd) < 1e-6, "{t}: {} vs {fd}", d.f_tt);
         }
     }
 

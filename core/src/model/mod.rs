@@ -18,7 +18,7 @@ pub mod state;
 
 pub use activity::{ActivityModel, ExcessDerivs, ExcessGibbs, Margules, Nrtl};
 pub use any::Model;
-pub use cubic::{CubicEos, CubicKind, CubicSpec, KijMatrix};
+pub use cubic::{CubicEos, CubicKind, CubicSpec, KijMatrix, MixingRule};
 pub use description::{ModelDescription, model_from_json};
 pub use fugacity::{FugacityWork, LnPhi, Need, RootChoice, ln_phi};
 pub use iapws95::Iapws95;

@@ -19,8 +19,18 @@
 //!             "t_min": 273.15, "t_max": 360},
 //!  "vapor": "ideal_gas", "poynting": false}
 //! ```
+//!
+//! A cubic may take its attraction parameter from an activity model through an EOS/G^E
+//! mixing rule ([`MixingRule`]; the activity model's components must be the cubic's):
+//!
+//! ```json
+//! {"model": "cubic", "kind": "peng_robinson", "components": ["acetone", "water"],
+//!  "mixing": {"rule": "mhv1", "activity": {"kind": "nrtl", "components": ["acetone", "water"],
+//!             "a": [[0, 0], [0, 0]], "b": [[0, 300], [600, 0]], "c": [[0, 0.3], [0.3, 0]],
+//!             "t_min": 273.15, "t_max": 423.15}}}
+//! ```
 
-use super::{CubicEos, CubicKind, KijMatrix, Model};
+use super::{CubicEos, CubicKind, KijMatrix, MixingRule, Model};
 use crate::error::{Error, Result, num};
 use crate::substance::DataBank;
 use serde::{Deserialize, Serialize};
@@ -61,6 +71,8 @@ pub enum ShiftSpec {
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(tag = "model", rename_all = "snake_case", deny_unknown_fields)]
 #[non_exhaustive]
+// Descriptions are parsed once per model, so the size difference between variants does not matter.
+#[allow(clippy::large_enum_variant)]
 pub enum ModelDescription {
     /// A cubic equation of state.
     Cubic {
@@ -74,6 +86,9 @@ pub enum ModelDescription {
         /// Optional volume shifts.
         #[serde(default)]
         volume_shift: Option<ShiftSpec>,
+        /// The mixing rule (van der Waals with `kij` if absent).
+        #[serde(default)]
+        mixing: Option<MixingRule>,
     },
     /// Water by IAPWS-95: `{"model": "iapws95"}` (no parameters).
     Iapws95 {},
@@ -113,6 +128,7 @@ impl ModelDescription {
                 components,
                 kij,
                 volume_shift,
+                mixing,
             } => {
                 let mut comps = Vec::with_capacity(components.len());
                 for c in components {
@@ -155,6 +171,9 @@ impl ModelDescription {
                     k.set(idx(row[0])?, idx(row[1])?, row[2], row.get(3).copied().unwrap_or(0.0))?;
                 }
                 let mut m = CubicEos::new(*kind, comps)?.with_kij(k)?;
+                if let Some(rule) = mixing {
+                    m = m.with_mixing(rule.clone())?;
+                }
                 match volume_shift {
                     None => {}
                     Some(ShiftSpec::Named(s)) if s == "peneloux" => m = m.with_peneloux_estimate()?,

@@ -19,7 +19,7 @@ pub mod state;
 
 pub use activity::{ActivityModel, ExcessDerivs, ExcessGibbs, Margules, Nrtl, Unifac, Uniquac, Wilson};
 pub use any::Model;
-pub use cubic::{CubicEos, CubicKind, CubicSpec, KijMatrix};
+pub use cubic::{CubicEos, CubicKind, CubicSpec, KijMatrix, MixingRule};
 pub use description::{ModelDescription, model_from_json};
 pub use fugacity::{FugacityWork, LnPhi, Need, RootChoice, ln_phi};
 pub use iapws95::Iapws95;
@@ -69,6 +69,8 @@ pub struct HelmholtzDerivs {
 pub(crate) struct MixCache {
     pub(crate) key: Option<(u64, u64, bool)>,
     pub(crate) a: Vec<f64>,
+    /// Excess-property storage of a cubic model with an EOS/G^E mixing rule.
+    pub(crate) excess: ExcessDerivs,
 }
 
 impl HelmholtzDerivs {

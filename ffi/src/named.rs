@@ -458,3 +458,35 @@ pub unsafe extern "C" fn tl_reaction_tp_fluid_phases(
         }
     })
 }
+
+/// Activity coefficients of a liquid of the model's activity-coefficient model (a solution
+/// model's liquid, or the excess Gibbs model of a cubic's EOS/G^E mixing rule) at
+/// `temperature` (K) and the composition of `feed` (`nc` amounts, mol): fields `ln_gamma`,
+/// `gamma`, `d_ln_gamma_dt` (1/K), `d_ln_gamma_dn` (1/mol, one row per component),
+/// `excess_gibbs`, `excess_enthalpy` (J/mol), `excess_entropy` (J/(mol K)). A model without
+/// one is `TL_STATUS_INVALID_INPUT`; a temperature outside the parameters' range is
+/// `TL_STATUS_OUTSIDE_VALIDITY`.
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_activity_coefficients(
+    model: *const tl_model,
+    temperature: f64,
+    feed: *const f64,
+    nc: usize,
+    record: *mut tl_record,
+) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        unsafe {
+            named(
+                "activity_coefficients",
+                std::ptr::null(),
+                std::ptr::null_mut(),
+                model,
+                &[temperature],
+                feed,
+                nc,
+                record,
+            )
+        }
+    })
+}

@@ -35,7 +35,7 @@ use crate::equilibrium::{
     phase_envelope,
 };
 use crate::error::{Error, Result};
-use crate::model::{FluidModel, Model};
+use crate::model::{ExcessGibbs, FluidModel, Model};
 use serde::Serialize;
 use serde::de::DeserializeOwned;
 use serde_json::Value as Json;
@@ -100,7 +100,14 @@ pub enum Options {
     State(StateFlashOptions),
     /// Reaction-equilibrium options.
     Reaction(ReactionCalcOptions),
+    /// A calculation without options.
+    Plain(NoOptions),
 }
+
+/// The options of a calculation that takes none: the empty JSON object.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, serde::Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct NoOptions {}
 
 /// Options of the reaction-equilibrium calculations: the species besides the model's
 /// components, the gas model, and the minimiser's options.
@@ -131,6 +138,8 @@ pub struct Workspace {
     /// The reaction system of the last reaction calculation, keyed by its species, and its
     /// warm-start context.
     reaction: Option<(Vec<String>, ReactionSystem, ReactionContext)>,
+    /// Excess-property storage of the activity-coefficient calculations.
+    excess: crate::model::ExcessDerivs,
 }
 
 impl Workspace {
@@ -703,6 +712,45 @@ pub static CALCULATIONS: &[Calculation] = &[
             },
         ],
     ),
+    Calculation {
+        name: "activity_coefficients",
+        summary: "activity coefficients and excess properties of a liquid of the model's \
+                  activity-coefficient model (of a γ–φ model or of a cubic's EOS/G^E mixing rule) \
+                  at given temperature and composition (the feed amounts)",
+        arguments: &[T_ARG],
+        feed_extension: None,
+        defaults: defaults_of::<NoOptions>,
+        parse: |v| Ok(Options::Plain(parse_as(v)?)),
+        run: |_, _o, ws, m, a, feed| {
+            let act = m.activity_model().ok_or_else(|| {
+                Error::invalid(
+                    "model",
+                    "activity_coefficients needs a model with an activity-coefficient liquid \
+                     (a solution model, or a cubic with an EOS/G^E mixing rule)",
+                )
+            })?;
+            let nc = act.num_components();
+            crate::error::check::amounts(feed, nc)?;
+            let out = &mut ws.excess;
+            out.resize(nc);
+            act.excess(a[0], feed, crate::model::Need::ALL, out)?;
+            let rt = crate::substance::R * a[0];
+            let mut rec = Record::new("activity_coefficients");
+            rec.number("temperature", "K", a[0])
+                .numbers("ln_gamma", "1", out.ln_gamma.clone())
+                .numbers("gamma", "1", out.ln_gamma.iter().map(|l| l.exp()).collect())
+                .numbers("d_ln_gamma_dt", "1/K", out.dt.clone())
+                .table(
+                    "d_ln_gamma_dn",
+                    "1/mol",
+                    out.dn.chunks(nc).map(<[f64]>::to_vec).collect(),
+                )
+                .number("excess_gibbs", "J/mol", out.g_excess * rt)
+                .number("excess_enthalpy", "J/mol", out.h_excess)
+                .number("excess_entropy", "J/(mol K)", out.s_excess);
+            Ok(rec)
+        },
+    },
     Calculation {
         name: "phase_envelope",
         summary: "the bubble and dew curves of a mixture traced through its critical point, with the \

@@ -36,6 +36,16 @@ impl Model {
     pub fn to_json(&self) -> String {
         serde_json::to_string(self).unwrap_or_else(|e| format!("{{\"error\": \"{e}\"}}"))
     }
+
+    /// The liquid-solution (activity-coefficient) model inside this model, if any: the liquid of
+    /// a γ–φ model, or the excess Gibbs model of a cubic's EOS/G^E mixing rule.
+    pub fn activity_model(&self) -> Option<&super::ActivityModel> {
+        match self {
+            Model::Solution(s) => Some(s.liquid()),
+            Model::Cubic(c) => c.mixing().activity(),
+            Model::Iapws95(_) => None,
+        }
+    }
 }
 
 impl From<CubicEos> for Model {

@@ -55,6 +55,7 @@ from ._named import (
     reaction_sp,
     reaction_tp,
     reaction_tp_fluid_phases,
+    activity_coefficients,
     reaction_tv,
     reaction_uv,
 )
@@ -121,6 +122,7 @@ __all__ = [
     "reaction_tv",
     "reaction_uv",
     "reaction_tp_fluid_phases",
+    "activity_coefficients",
     "calculations",
     "describe",
     "Record",

@@ -13,7 +13,7 @@ from typing import Any, Optional
 from ._calc import calculate
 from ._core import Model
 
-__all__ = ["flash_ph", "flash_ps", "flash_tv", "flash_uv", "flash_sensitivities", "phase_envelope", "critical_point", "reaction_tp", "reaction_hp", "reaction_sp", "reaction_tv", "reaction_uv", "reaction_tp_fluid_phases"]
+__all__ = ["flash_ph", "flash_ps", "flash_tv", "flash_uv", "flash_sensitivities", "phase_envelope", "critical_point", "reaction_tp", "reaction_hp", "reaction_sp", "reaction_tv", "reaction_uv", "reaction_tp_fluid_phases", "activity_coefficients"]
 
 
 def flash_sensitivities(
@@ -216,3 +216,19 @@ def reaction_tp_fluid_phases(model: Model, temperature: Any, pressure: Any, feed
     answer, ≥ 0 up to round-off at the minimum), ``stable``.
     """
     return calculate("reaction_tp_fluid_phases", model, temperature, pressure, feed=feed, **kw)
+
+
+def activity_coefficients(
+    model: Model, temperature: Any, composition: Any, *, threads: Optional[int] = None, on_error: str = "raise"
+) -> Any:
+    """Activity coefficients of a liquid of the model's activity-coefficient model (the liquid of
+    a solution model, or the excess Gibbs model of a cubic's EOS/G^E mixing rule) at
+    ``temperature`` (K) and ``composition`` (amounts or mole fractions, mol).
+
+    Fields: ``ln_gamma``, ``gamma``, ``d_ln_gamma_dt`` (1/K), ``d_ln_gamma_dn`` (1/mol, one row
+    per component), ``excess_gibbs``, ``excess_enthalpy`` (J/mol), ``excess_entropy``
+    (J/(mol K)). Arrays of temperatures or rows of compositions give a :class:`~tieline.Sweep`.
+    A model without an activity-coefficient liquid is an :class:`InvalidInputError`; a
+    temperature outside the parameters' range an :class:`OutsideValidityError`.
+    """
+    return calculate("activity_coefficients", model, temperature, feed=composition, threads=threads, on_error=on_error)

@@ -73,12 +73,14 @@ pub trait ExcessGibbs: Send + Sync {
 
 mod margules;
 mod nrtl;
+mod pairs;
 mod unifac;
 mod uniquac;
 mod wilson;
 
 pub use margules::{Margules, MargulesParams};
 pub use nrtl::{Nrtl, NrtlParams};
+pub use pairs::{ActivityPairs, MissingPairs, NrtlPair, UniquacPair, WilsonPair};
 pub use unifac::{Unifac, UnifacInteraction, UnifacParams, UnifacSubgroup, UnifacTable};
 pub use uniquac::{COORDINATION_NUMBER, Uniquac, UniquacParams};
 pub use wilson::{Wilson, WilsonParams};

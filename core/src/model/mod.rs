@@ -17,7 +17,7 @@ pub mod solid;
 pub mod solution;
 pub mod state;
 
-pub use activity::{ActivityModel, ExcessDerivs, ExcessGibbs, Margules, Nrtl, Uniquac, Wilson};
+pub use activity::{ActivityModel, ExcessDerivs, ExcessGibbs, Margules, Nrtl, Unifac, Uniquac, Wilson};
 pub use any::Model;
 pub use cubic::{CubicEos, CubicKind, CubicSpec, KijMatrix};
 pub use description::{ModelDescription, model_from_json};

@@ -73,11 +73,15 @@ pub trait ExcessGibbs: Send + Sync {
 
 mod margules;
 mod nrtl;
+mod pairs;
+mod unifac;
 mod uniquac;
 mod wilson;
 
 pub use margules::{Margules, MargulesParams};
 pub use nrtl::{Nrtl, NrtlParams};
+pub use pairs::{ActivityPairs, MissingPairs, NrtlPair, UniquacPair, WilsonPair};
+pub use unifac::{Unifac, UnifacInteraction, UnifacParams, UnifacSubgroup, UnifacTable};
 pub use uniquac::{COORDINATION_NUMBER, Uniquac, UniquacParams};
 pub use wilson::{Wilson, WilsonParams};
 
@@ -98,6 +102,8 @@ pub enum ActivityModel {
     Wilson(Wilson),
     /// UNIQUAC model ([`Uniquac`]).
     Uniquac(Uniquac),
+    /// UNIFAC group-contribution model ([`Unifac`]).
+    Unifac(Unifac),
     /// Two-suffix Margules model ([`Margules`]).
     Margules(Margules),
 }
@@ -125,6 +131,7 @@ macro_rules! delegate {
             ActivityModel::Nrtl($m) => $e,
             ActivityModel::Wilson($m) => $e,
             ActivityModel::Uniquac($m) => $e,
+            ActivityModel::Unifac($m) => $e,
             ActivityModel::Margules($m) => $e,
         }
     };
@@ -161,6 +168,12 @@ impl From<Wilson> for ActivityModel {
 impl From<Uniquac> for ActivityModel {
     fn from(m: Uniquac) -> Self {
         ActivityModel::Uniquac(m)
+    }
+}
+
+impl From<Unifac> for ActivityModel {
+    fn from(m: Unifac) -> Self {
+        ActivityModel::Unifac(m)
     }
 }
 

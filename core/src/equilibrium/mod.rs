@@ -6,6 +6,7 @@
 //! [`Error::NotConverged`](crate::Error::NotConverged) with the iterations and the residual
 //! reached.
 
+pub mod azeotrope;
 pub mod batch;
 pub mod critical;
 pub mod envelope;
@@ -20,6 +21,7 @@ pub mod solid_flash;
 pub mod stability;
 pub mod state_flash;
 
+pub use azeotrope::{Azeotrope, AzeotropeOptions, azeotrope_at_pressure, azeotrope_at_temperature};
 pub use batch::flash_batch;
 pub use critical::{CriticalOptions, CriticalPoint, critical_point};
 pub use envelope::{EnvelopeOptions, EnvelopePoint, PhaseEnvelope, phase_envelope};

@@ -14,15 +14,17 @@
 //!    when the result is the global minimum among two-phase states);
 //! 4. if the certificate still finds a lower tangent plane after one retry, the state has a
 //!    third phase: with [`FlashOptions::max_phases`] = 3 its stationary point joins the two
-//!    phases of the split and the three-phase problem is solved (see `multiphase`), and the
-//!    answer is certified in turn; otherwise the flash reports `Error::NoSolution`.
+//!    phases of the split and the three-phase problem is solved by the multiphase machinery
+//!    of [`super::nphase`] (multiphase Rachford–Rice successive substitution, then Newton on
+//!    G in the phase amounts, phase removal and a certificate); otherwise the flash reports
+//!    `Error::NoSolution`.
 //!
 //! A [`FlashContext`] keeps the workspaces and the previous solution: its warm start begins
 //! from the previous K-values and skips the feed stability test (simulators' time-stepping
 //! use), falling back to the cold path whenever the warm split collapses.
 
 use super::EquilibriumWork;
-use super::multiphase::{ThreeOutcome, ThreePhase, three_phase};
+use super::nphase::{Plan, Solver};
 use super::rachford_rice;
 use super::stability::{StabilityOptions, StabilityResult, stability_with};
 use crate::error::{Error, Result, check, num};
@@ -297,8 +299,9 @@ pub struct FlashContext {
     cert: StabilityResult,
     prev_lnk: Vec<f64>,
     prev_two_phase: bool,
-    /// The three-phase split of this call, when one was found.
-    three: Option<Box<ThreePhase>>,
+    /// The multiphase solver, whose phase set is this call's answer when `multi_used`.
+    multi: Solver,
+    multi_used: bool,
     /// Whether `ws.phi_feed` holds ln φ of this call's feed (set by the feed's stability test).
     feed_evaluated: bool,
     result: FlashResult,
@@ -393,7 +396,7 @@ impl FlashContext {
     ) -> Result<()> {
         let mut found = false;
         self.feed_evaluated = false;
-        self.three = None;
+        self.multi_used = false;
         if self.prev_two_phase {
             self.ws.lnk.copy_from_slice(&self.prev_lnk);
             let out = self.two_phase(model, t, p, opts, true, diag)?;
@@ -613,9 +616,9 @@ impl FlashContext {
     }
 
     /// The certificate of the best two-phase split found a lower tangent plane at the
-    /// stationary point `cert.points[0]`: add it as a third phase to the split's two, solve
-    /// the three-phase problem, and certify the answer by a stability test of its largest
-    /// phase (all phases share the tangent plane).
+    /// stationary point `cert.points[0]`: add it as a third phase to the split's two and solve
+    /// with the multiphase solver (which removes a phase that leaves and certifies the
+    /// answer by a stability test of its largest phase).
     fn add_third_phase<M: FluidModel + ?Sized>(
         &mut self,
         model: &M,
@@ -625,88 +628,19 @@ impl FlashContext {
         diag: &mut Diagnostics,
     ) -> Result<()> {
         let tpd = self.cert.min_tpd;
-        let w = self.cert.points[0].composition.clone();
-        let z = self.ws.z.clone();
-        let (x, y) = (self.best.x.clone(), self.best.y.clone());
+        let plan = three_phase_plan(opts);
+        self.multi.resize(self.nc);
+        self.multi.set_feed(&self.ws.z);
+        let w = &self.cert.points[0].composition;
+        self.multi.start_from(&[&self.best.y, &self.best.x, w]);
         diag.splits_tried += 1;
-        let out = three_phase(
-            model,
-            t,
-            p,
-            &z,
-            [&y, &x, &w],
-            // Converged well below the flash tolerance, so that the certificate's
-            // tangent-plane distances at the other phases (≈ the residual) stay inside
-            // its threshold.
-            opts.tolerance * 1e-2,
-            opts.max_ss_iterations,
-            &mut self.ws.fw,
-        )?;
-        let tp = match out {
-            ThreeOutcome::Converged(tp) => tp,
-            ThreeOutcome::Collapsed(Some([a, b])) => {
-                // A phase left: the answer may be another two-phase split, of the two phases
-                // that remained. Solve it, keep it if G falls, and certify it.
-                return self.two_phase_from(model, t, p, opts, diag, &a, &b, tpd);
-            }
-            ThreeOutcome::Collapsed(None) => {
-                return Err(Error::NoSolution(format!(
-                    "at T = {t} K, p = {p} Pa a third phase lowers G below the best two-phase split \
-                     (tangent-plane distance {tpd}), but the three-phase search from it collapsed",
-                    t = num(t),
-                    p = num(p),
-                    tpd = num(tpd)
-                )));
-            }
-        };
-        diag.ss_iterations += tp.iterations;
-        let big = (0..3).max_by(|&a, &b| tp.beta[a].total_cmp(&tp.beta[b])).unwrap_or(0);
-        self.certificate_of(model, t, p, &tp.x[big], opts, diag)?;
-        if !self.cert.stable {
-            return Err(Error::NoSolution(format!(
-                "at T = {t} K, p = {p} Pa the least-Gibbs state has more than three phases \
-                     (a fourth phase lowers G: tangent-plane distance {})",
-                num(self.cert.min_tpd),
-                t = num(t),
-                p = num(p)
-            )));
-        }
-        self.three = Some(tp);
-        Ok(())
-    }
-
-    /// A two-phase split started from K_i = a_i/b_i, kept if its G lies below the best
-    /// split's, then certified; a certificate still negative is `Error::NoSolution`.
-    #[allow(clippy::too_many_arguments)]
-    fn two_phase_from<M: FluidModel + ?Sized>(
-        &mut self,
-        model: &M,
-        t: f64,
-        p: f64,
-        opts: &FlashOptions,
-        diag: &mut Diagnostics,
-        a: &[f64],
-        b: &[f64],
-        tpd: f64,
-    ) -> Result<()> {
-        for i in 0..self.nc {
-            self.ws.lnk[i] = if self.ws.z[i] > 0.0 { (a[i] / b[i]).ln() } else { 0.0 };
-        }
-        diag.splits_tried += 1;
-        if let Ok(SplitOutcome::Converged) = self.two_phase(model, t, p, opts, false, diag)
-            && self.split.gibbs < self.best.gibbs
-        {
-            self.best.copy_from(&self.split);
-        }
-        let x = self.best.x.clone();
-        self.certificate_of(model, t, p, &x, opts, diag)?;
-        if self.cert.stable {
+        if self.multi.solve_and_add(model, t, p, &plan, false, diag)? {
+            self.multi_used = true;
             return Ok(());
         }
         Err(Error::NoSolution(format!(
             "at T = {t} K, p = {p} Pa a third phase lowers G below the best two-phase split \
-             (tangent-plane distance {tpd}), but neither a three-phase split nor the \
-             two-phase split left when a phase vanished is stable",
+             (tangent-plane distance {tpd}), but the multiphase search from it collapsed",
             t = num(t),
             p = num(p),
             tpd = num(tpd)
@@ -1129,9 +1063,8 @@ impl FlashContext {
         r.feed.clear();
         r.feed.extend_from_slice(n);
         r.tie_line = None;
-        let three = self.three.take();
-        let count = if three.is_some() {
-            3
+        let count = if self.multi_used {
+            self.multi.phases()
         } else if two {
             2
         } else {
@@ -1145,35 +1078,10 @@ impl FlashContext {
                 ..Default::default()
             });
         }
-        if let Some(tp) = three {
-            diag.residual = tp.residual;
-            diag.gibbs = tp.gibbs;
-            // Lightest first: the vapour (gas-like by volume, or above its pseudo-critical
-            // temperature by Kay's rule as for two phases), then the lighter liquid (Liquid2)
-            // and the denser one (Liquid).
-            let mut order = [0usize, 1, 2];
-            order.sort_by(|&a, &b| tp.phi[b].v.total_cmp(&tp.phi[a].v));
-            let light = order[0];
-            let kay: f64 = (0..nc).map(|i| tp.x[light][i] * model.critical_constants(i).tc).sum();
-            if tp.phi[light].liquid_like && t < kay {
-                return Err(Error::NoSolution(format!(
-                    "at T = {t} K, p = {p} Pa the least-Gibbs state has three liquid phases, \
-                     which the result does not represent",
-                    t = num(t),
-                    p = num(p)
-                )));
-            }
-            let kinds = [PhaseKind::Vapor, PhaseKind::Liquid2, PhaseKind::Liquid];
-            for (slot, &k) in order.iter().enumerate() {
-                let ph = &mut r.phases[slot];
-                ph.kind = Some(kinds[slot]);
-                ph.fraction = tp.beta[k];
-                ph.amount = tp.beta[k] * ntot;
-                ph.composition.copy_from_slice(&tp.x[k]);
-                ph.ln_phi.copy_from_slice(&tp.phi[k].ln_phi);
-                ph.molar_volume = tp.phi[k].v;
-                ph.z = tp.phi[k].z;
-            }
+        if self.multi_used {
+            // Vapour first, then the liquids by increasing density (`Liquid2`, `Liquid`).
+            self.multi
+                .write(model, t, p, ntot, &three_phase_plan(opts), &mut diag, r)?;
             self.prev_two_phase = false;
         } else if two {
             let s = &self.best;
@@ -1304,6 +1212,20 @@ fn gibbs(z: &[f64], s: &Split) -> f64 {
         }
     }
     g
+}
+
+/// The multiphase solver's task for the PT flash's third phase.
+fn three_phase_plan(opts: &FlashOptions) -> Plan {
+    Plan {
+        tolerance: opts.tolerance,
+        max_ss: opts.max_ss_iterations.max(1),
+        max_newton: opts.max_newton_iterations,
+        stability: opts.stability,
+        certificate: true,
+        limit: 3,
+        max_liquids: 3,
+        root: RootChoice::Stable,
+    }
 }
 
 /// One-shot PT flash of feed amounts `n` (mol) at T (K) and p (Pa).

@@ -11,7 +11,7 @@ pub mod batch;
 pub mod critical;
 pub mod envelope;
 pub mod flash;
-pub(crate) mod multiphase;
+pub mod nphase;
 pub mod pure;
 pub mod rachford_rice;
 pub mod reaction;
@@ -26,6 +26,7 @@ pub use batch::flash_batch;
 pub use critical::{CriticalOptions, CriticalPoint, critical_point};
 pub use envelope::{EnvelopeOptions, EnvelopePoint, PhaseEnvelope, phase_envelope};
 pub use flash::{Diagnostics, FlashContext, FlashOptions, FlashResult, Phase, TieLine, flash_pt};
+pub use nphase::{MAX_FLUID_PHASES, MultiphaseContext, MultiphaseOptions, flash_multiphase};
 pub use pure::{Coexistence, Crossing, GibbsCurves, PhasePoint, PurePhase, PurePhases, StablePhase, TriplePoint};
 pub use saturation::{
     BubbleDew, PointKind, SaturationOptions, SaturationPoint, bubble_pressure, bubble_temperature, dew_pressure,

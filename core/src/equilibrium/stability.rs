@@ -144,6 +144,23 @@ pub(crate) fn stability_with<M: FluidModel + ?Sized>(
     ws: &mut EquilibriumWork,
     res: &mut StabilityResult,
 ) -> Result<()> {
+    stability_on(model, t, p, n, RootChoice::Stable, opts, extra_trials, ws, res)
+}
+
+/// As [`stability_with`], with the phase under test and every trial phase evaluated on the
+/// branch `root` (`RootChoice::Liquid` for a liquid–liquid-only search).
+#[allow(clippy::too_many_arguments)]
+pub(crate) fn stability_on<M: FluidModel + ?Sized>(
+    model: &M,
+    t: f64,
+    p: f64,
+    n: &[f64],
+    root: RootChoice,
+    opts: &StabilityOptions,
+    extra_trials: &[&[f64]],
+    ws: &mut EquilibriumWork,
+    res: &mut StabilityResult,
+) -> Result<()> {
     check::temperature(t)?;
     check::pressure(p)?;
     let nc = model.num_components();
@@ -156,15 +173,7 @@ pub(crate) fn stability_with<M: FluidModel + ?Sized>(
     for i in 0..nc {
         ws.sz[i] = n[i] / ntot;
     }
-    model.phase_ln_phi(
-        t,
-        p,
-        &ws.sz,
-        RootChoice::Stable,
-        Need::VALUES,
-        &mut ws.fw,
-        &mut ws.phi_feed,
-    )?;
+    model.phase_ln_phi(t, p, &ws.sz, root, Need::VALUES, &mut ws.fw, &mut ws.phi_feed)?;
     for i in 0..nc {
         ws.lnz[i] = if ws.sz[i] > 0.0 { ws.sz[i].ln() } else { 0.0 };
         ws.d[i] = if ws.sz[i] > 0.0 {
@@ -225,7 +234,7 @@ pub(crate) fn stability_with<M: FluidModel + ?Sized>(
                 ws.w[i] = if ws.sz[i] > 0.0 { e[i].max(1e-12) } else { 0.0 };
             }
         }
-        let outcome = run_trial(model, t, p, opts, ws)?;
+        let outcome = run_trial(model, t, p, root, opts, ws)?;
         res.iterations += outcome.iterations;
         match outcome.status {
             TrialStatus::Trivial => res.trivial_trials += 1,
@@ -341,6 +350,7 @@ fn run_trial<M: FluidModel + ?Sized>(
     model: &M,
     t: f64,
     p: f64,
+    root: RootChoice,
     opts: &StabilityOptions,
     ws: &mut EquilibriumWork,
 ) -> Result<TrialOutcome> {
@@ -356,7 +366,7 @@ fn run_trial<M: FluidModel + ?Sized>(
         let newton = iterations > opts.ss_steps;
         if !evaluated || (newton && !have_dn) {
             let need = if newton { Need::COMPOSITION } else { Need::VALUES };
-            eval_trial(model, t, p, need, &ws.w, &mut ws.x, &mut ws.fw, &mut ws.phi_b)?;
+            eval_trial(model, t, p, root, need, &ws.w, &mut ws.x, &mut ws.fw, &mut ws.phi_b)?;
             have_dn = newton;
         }
         evaluated = false;
@@ -443,6 +453,7 @@ fn run_trial<M: FluidModel + ?Sized>(
                 model,
                 t,
                 p,
+                root,
                 Need::COMPOSITION,
                 &ws.w,
                 &mut ws.x,
@@ -483,10 +494,12 @@ fn run_trial<M: FluidModel + ?Sized>(
     })
 }
 
+#[allow(clippy::too_many_arguments)]
 fn eval_trial<M: FluidModel + ?Sized>(
     model: &M,
     t: f64,
     p: f64,
+    root: RootChoice,
     need: Need,
     w: &[f64],
     x: &mut [f64],
@@ -497,7 +510,7 @@ fn eval_trial<M: FluidModel + ?Sized>(
     for (xi, wi) in x.iter_mut().zip(w) {
         *xi = wi / sw;
     }
-    model.phase_ln_phi(t, p, x, RootChoice::Stable, need, fw, out)?;
+    model.phase_ln_phi(t, p, x, root, need, fw, out)?;
     if need.composition {
         // ∂ln φ/∂n at total amount ΣW: scale the unit-amount derivative by 1/ΣW.
         for v in out.dn.iter_mut() {

@@ -14,7 +14,9 @@ use serde::{Deserialize, Serialize};
 /// result the lighter phase is named `Vapor` and the denser `Liquid`, unless both are
 /// liquid-like and the temperature is below the lighter phase's pseudo-critical temperature by
 /// Kay's rule (T_pc = Σ x_i Tc_i): then it is a liquid–liquid split, reported as `Liquid2`
-/// (the lighter, listed first) and `Liquid`.
+/// (the lighter, listed first) and `Liquid`. A multiphase result
+/// ([`crate::equilibrium::flash_multiphase`]) names its liquids from the densest: `Liquid`,
+/// then `Liquid2`, then `Liquid3`, listed after the vapour by increasing density.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]
 #[non_exhaustive]
@@ -25,6 +27,8 @@ pub enum PhaseKind {
     Liquid,
     /// A second liquid phase (the lighter of two liquids).
     Liquid2,
+    /// A third liquid phase (the lightest of three liquids).
+    Liquid3,
     /// A solid phase.
     Solid,
 }
@@ -35,6 +39,7 @@ impl std::fmt::Display for PhaseKind {
             PhaseKind::Vapor => "vapor",
             PhaseKind::Liquid => "liquid",
             PhaseKind::Liquid2 => "liquid2",
+            PhaseKind::Liquid3 => "liquid3",
             PhaseKind::Solid => "solid",
         })
     }

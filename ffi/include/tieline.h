@@ -142,6 +142,10 @@ enum tl_phase_kind
    */
   TL_PHASE_KIND_SOLID = 4,
   /**
+   * A third liquid phase (the lightest of three liquids).
+   */
+  TL_PHASE_KIND_LIQUID3 = 5,
+  /**
    * A kind this version of the C ABI does not name yet.
    */
   TL_PHASE_KIND_OTHER = 99,
@@ -1555,6 +1559,61 @@ tl_status tl_reaction_tp_fluid_phases(const struct tl_model *model,
                                       size_t n,
                                       const char *options_json,
                                       struct tl_workspace *workspace,
+                                      struct tl_record *record);
+
+/**
+ * Activity coefficients of a liquid of the model's activity-coefficient model (a solution
+ * model's liquid, or the excess Gibbs model of a cubic's EOS/G^E mixing rule) at
+ * `temperature` (K) and the composition of `feed` (`nc` amounts, mol): fields `ln_gamma`,
+ * `gamma`, `d_ln_gamma_dt` (1/K), `d_ln_gamma_dn` (1/mol, one row per component),
+ * `excess_gibbs`, `excess_enthalpy` (J/mol), `excess_entropy` (J/(mol K)). A model without
+ * one is `TL_STATUS_INVALID_INPUT`; a temperature outside the parameters' range is
+ * `TL_STATUS_OUTSIDE_VALIDITY`.
+ */
+tl_status tl_activity_coefficients(const struct tl_model *model,
+                                   double temperature,
+                                   const double *feed,
+                                   size_t nc,
+                                   struct tl_record *record);
+
+/**
+ * The phases of least Gibbs energy at `temperature` (K) and `pressure` (Pa) with any number
+ * of fluid phases: a vapour and up to three liquids (`{"allow_vapor": false}` for
+ * liquid–liquid equilibrium only; `max_liquids`, `tolerance`, ... in `options_json`). The
+ * record holds the fields of a PT flash (`num_phases`, `phase_kinds`, `compositions` ...).
+ * `workspace` (nullable) warm-starts from its previous phase set.
+ */
+tl_status tl_flash_multiphase(const struct tl_model *model,
+                              double temperature,
+                              double pressure,
+                              const double *feed,
+                              size_t nc,
+                              const char *options_json,
+                              struct tl_workspace *workspace,
+                              struct tl_record *record);
+
+/**
+ * The azeotrope of a binary model at `pressure` (Pa), searched from the composition of `feed`
+ * (2 amounts, mol) and then by a scan of x1: fields `temperature` (K), `pressure` (Pa),
+ * `composition` (x = y), `ln_phi`, `molar_volumes` (m3/mol), `residual`, `iterations`. A
+ * binary without an azeotrope at that pressure is `TL_STATUS_NO_SOLUTION`.
+ */
+tl_status tl_azeotrope_at_pressure(const struct tl_model *model,
+                                   double pressure,
+                                   const double *feed,
+                                   size_t nc,
+                                   const char *options_json,
+                                   struct tl_record *record);
+
+/**
+ * The azeotrope of a binary model at `temperature` (K); as `tl_azeotrope_at_pressure` with
+ * the pressure unknown.
+ */
+tl_status tl_azeotrope_at_temperature(const struct tl_model *model,
+                                      double temperature,
+                                      const double *feed,
+                                      size_t nc,
+                                      const char *options_json,
                                       struct tl_record *record);
 
 /**

@@ -490,3 +490,94 @@ pub unsafe extern "C" fn tl_activity_coefficients(
         }
     })
 }
+
+/// The phases of least Gibbs energy at `temperature` (K) and `pressure` (Pa) with any number
+/// of fluid phases: a vapour and up to three liquids (`{"allow_vapor": false}` for
+/// liquid–liquid equilibrium only; `max_liquids`, `tolerance`, ... in `options_json`). The
+/// record holds the fields of a PT flash (`num_phases`, `phase_kinds`, `compositions` ...).
+/// `workspace` (nullable) warm-starts from its previous phase set.
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_flash_multiphase(
+    model: *const tl_model,
+    temperature: f64,
+    pressure: f64,
+    feed: *const f64,
+    nc: usize,
+    options_json: *const c_char,
+    workspace: *mut tl_workspace,
+    record: *mut tl_record,
+) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        unsafe {
+            named(
+                "flash_multiphase",
+                options_json,
+                workspace,
+                model,
+                &[temperature, pressure],
+                feed,
+                nc,
+                record,
+            )
+        }
+    })
+}
+
+/// The azeotrope of a binary model at `pressure` (Pa), searched from the composition of `feed`
+/// (2 amounts, mol) and then by a scan of x1: fields `temperature` (K), `pressure` (Pa),
+/// `composition` (x = y), `ln_phi`, `molar_volumes` (m3/mol), `residual`, `iterations`. A
+/// binary without an azeotrope at that pressure is `TL_STATUS_NO_SOLUTION`.
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_azeotrope_at_pressure(
+    model: *const tl_model,
+    pressure: f64,
+    feed: *const f64,
+    nc: usize,
+    options_json: *const c_char,
+    record: *mut tl_record,
+) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        unsafe {
+            named(
+                "azeotrope_at_pressure",
+                options_json,
+                std::ptr::null_mut(),
+                model,
+                &[pressure],
+                feed,
+                nc,
+                record,
+            )
+        }
+    })
+}
+
+/// The azeotrope of a binary model at `temperature` (K); as `tl_azeotrope_at_pressure` with
+/// the pressure unknown.
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn tl_azeotrope_at_temperature(
+    model: *const tl_model,
+    temperature: f64,
+    feed: *const f64,
+    nc: usize,
+    options_json: *const c_char,
+    record: *mut tl_record,
+) -> tl_status {
+    ffi_boundary!({
+        // SAFETY: caller contract.
+        unsafe {
+            named(
+                "azeotrope_at_temperature",
+                options_json,
+                std::ptr::null_mut(),
+                model,
+                &[temperature],
+                feed,
+                nc,
+                record,
+            )
+        }
+    })
+}

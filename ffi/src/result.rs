@@ -43,6 +43,8 @@ pub enum tl_phase_kind {
     Liquid2 = 3,
     /// A solid phase.
     Solid = 4,
+    /// A third liquid phase (the lightest of three liquids).
+    Liquid3 = 5,
     /// A kind this version of the C ABI does not name yet.
     Other = 99,
 }
@@ -56,6 +58,7 @@ impl tl_phase_kind {
             Some(PhaseKind::Liquid) => tl_phase_kind::Liquid,
             Some(PhaseKind::Liquid2) => tl_phase_kind::Liquid2,
             Some(PhaseKind::Solid) => tl_phase_kind::Solid,
+            Some(PhaseKind::Liquid3) => tl_phase_kind::Liquid3,
             Some(_) => tl_phase_kind::Other,
         }
     }

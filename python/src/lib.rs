@@ -1090,11 +1090,12 @@ fn _phase_state<'py>(
         "vapor" => PhaseKind::Vapor,
         "liquid" => PhaseKind::Liquid,
         "liquid2" => PhaseKind::Liquid2,
+        "liquid3" => PhaseKind::Liquid3,
         _ => {
             return Err(invalid(
                 py,
                 "kind",
-                &format!("'{kind}'; vapor, liquid or liquid2 is required"),
+                &format!("'{kind}'; vapor, liquid, liquid2 or liquid3 is required"),
             ));
         }
     };

@@ -37,6 +37,7 @@ pub fn kind_name(k: Option<PhaseKind>) -> &'static str {
         Some(PhaseKind::Liquid) => "liquid",
         Some(PhaseKind::Liquid2) => "liquid2",
         Some(PhaseKind::Solid) => "solid",
+        Some(PhaseKind::Liquid3) => "liquid3",
         Some(_) => "other",
         None => "unknown",
     }

@@ -107,7 +107,8 @@ pub fn kind_code(k: Option<PhaseKind>) -> i8 {
         Some(PhaseKind::Liquid) => 2,
         Some(PhaseKind::Liquid2) => 3,
         Some(PhaseKind::Solid) => 4,
-        Some(_) => 5,
+        Some(PhaseKind::Liquid3) => 5,
+        Some(_) => 6,
     }
 }
 

@@ -26,6 +26,8 @@ mod record;
 
 pub use record::{Column, ColumnData, Columns, Field, Record, Value};
 
+use crate::equilibrium::azeotrope::{Azeotrope, AzeotropeOptions, azeotrope_at_pressure, azeotrope_at_temperature};
+use crate::equilibrium::nphase::{MultiphaseContext, MultiphaseOptions};
 use crate::equilibrium::reaction::{
     ReactionContext, ReactionOptions, ReactionResult, ReactionSystem, ReactivePhaseResult,
 };
@@ -102,6 +104,10 @@ pub enum Options {
     Reaction(ReactionCalcOptions),
     /// A calculation without options.
     Plain(NoOptions),
+    /// Multiphase-flash options.
+    Multiphase(MultiphaseOptions),
+    /// Azeotrope-search options.
+    Azeotrope(AzeotropeOptions),
 }
 
 /// The options of a calculation that takes none: the empty JSON object.
@@ -140,6 +146,8 @@ pub struct Workspace {
     reaction: Option<(Vec<String>, ReactionSystem, ReactionContext)>,
     /// Excess-property storage of the activity-coefficient calculations.
     excess: crate::model::ExcessDerivs,
+    /// Warm-start state of the multiphase flash.
+    multiphase: MultiphaseContext,
 }
 
 impl Workspace {
@@ -147,6 +155,7 @@ impl Workspace {
     pub fn reset(&mut self) {
         self.flash.reset();
         self.state.reset();
+        self.multiphase.reset();
         if let Some((_, _, c)) = &mut self.reaction {
             c.reset();
         }
@@ -713,6 +722,59 @@ pub static CALCULATIONS: &[Calculation] = &[
         ],
     ),
     Calculation {
+        name: "flash_multiphase",
+        summary: "phases of least Gibbs energy at given temperature and pressure with any number of \
+                  fluid phases (a vapour and up to three liquids; liquids only with allow_vapor = \
+                  false): stability-driven phase addition and removal, Newton on the Gibbs energy",
+        arguments: &[T_ARG, P_ARG],
+        feed_extension: None,
+        defaults: defaults_of::<MultiphaseOptions>,
+        parse: |v| {
+            let o: MultiphaseOptions = parse_as(v)?;
+            o.validate()?;
+            Ok(Options::Multiphase(o))
+        },
+        run: |_, o, ws, m, a, feed| {
+            let Options::Multiphase(o) = o else {
+                return Err(wrong_options("multiphase-flash"));
+            };
+            let r = ws.multiphase.flash(m, a[0], a[1], feed, o)?;
+            let mut rec = Record::new("flash_multiphase");
+            flash_fields(&mut rec, m, r);
+            Ok(rec)
+        },
+    },
+    Calculation {
+        name: "azeotrope_at_pressure",
+        summary: "the azeotrope of a binary at given pressure (x = y with equal fugacities, Newton); \
+                  the search starts at the feed's composition and falls back to a scan of x1",
+        arguments: &[P_ARG],
+        feed_extension: None,
+        defaults: defaults_of::<AzeotropeOptions>,
+        parse: |v| {
+            let o: AzeotropeOptions = parse_as(v)?;
+            o.validate()?;
+            Ok(Options::Azeotrope(o))
+        },
+        run: |name, o, _ws, m, a, feed| azeotrope_calc(name, o, m, feed, |g, o| azeotrope_at_pressure(m, a[0], g, o)),
+    },
+    Calculation {
+        name: "azeotrope_at_temperature",
+        summary: "the azeotrope of a binary at given temperature (x = y with equal fugacities, Newton); \
+                  the search starts at the feed's composition and falls back to a scan of x1",
+        arguments: &[T_ARG],
+        feed_extension: None,
+        defaults: defaults_of::<AzeotropeOptions>,
+        parse: |v| {
+            let o: AzeotropeOptions = parse_as(v)?;
+            o.validate()?;
+            Ok(Options::Azeotrope(o))
+        },
+        run: |name, o, _ws, m, a, feed| {
+            azeotrope_calc(name, o, m, feed, |g, o| azeotrope_at_temperature(m, a[0], g, o))
+        },
+    },
+    Calculation {
         name: "activity_coefficients",
         summary: "activity coefficients and excess properties of a liquid of the model's \
                   activity-coefficient model (of a γ–φ model or of a cubic's EOS/G^E mixing rule) \
@@ -790,6 +852,45 @@ pub static CALCULATIONS: &[Calculation] = &[
         },
     },
 ];
+
+/// An azeotrope from the feed's composition as the first estimate, then from a scan of x1 if
+/// that start does not converge; the record of its fields.
+fn azeotrope_calc(
+    name: &'static str,
+    o: &Options,
+    m: &Model,
+    feed: &[f64],
+    solve: impl Fn(Option<f64>, &AzeotropeOptions) -> Result<Azeotrope>,
+) -> Result<Record> {
+    let Options::Azeotrope(o) = o else {
+        return Err(wrong_options("azeotrope"));
+    };
+    if m.num_components() != 2 {
+        return Err(Error::invalid(
+            "model",
+            format!(
+                "an azeotrope is located for binaries only; the model has {} components",
+                m.num_components()
+            ),
+        ));
+    }
+    let ntot = crate::error::check::amounts(feed, 2)?;
+    let x1 = feed[0] / ntot;
+    let guess = (x1 > 0.0 && x1 < 1.0).then_some(x1);
+    let az = match guess.map(|g| solve(Some(g), o)) {
+        Some(Ok(az)) => az,
+        _ => solve(None, o)?,
+    };
+    let mut rec = Record::new(name);
+    rec.number("temperature", "K", az.temperature)
+        .number("pressure", "Pa", az.pressure)
+        .numbers("composition", "1", az.composition.to_vec())
+        .numbers("ln_phi", "1", az.ln_phi.to_vec())
+        .numbers("molar_volumes", "m3/mol", az.molar_volumes.to_vec())
+        .number("residual", "1", az.residual)
+        .count("iterations", az.iterations);
+    Ok(rec)
+}
 
 fn wrong_options(what: &str) -> Error {
     Error::invalid("options", format!("{what} options are required"))

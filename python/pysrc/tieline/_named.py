@@ -13,7 +13,7 @@ from typing import Any, Optional
 from ._calc import calculate
 from ._core import Model
 
-__all__ = ["flash_ph", "flash_ps", "flash_tv", "flash_uv", "flash_sensitivities", "phase_envelope", "critical_point", "reaction_tp", "reaction_hp", "reaction_sp", "reaction_tv", "reaction_uv", "reaction_tp_fluid_phases", "activity_coefficients"]
+__all__ = ["flash_ph", "flash_ps", "flash_tv", "flash_uv", "flash_sensitivities", "phase_envelope", "critical_point", "reaction_tp", "reaction_hp", "reaction_sp", "reaction_tv", "reaction_uv", "reaction_tp_fluid_phases", "activity_coefficients", "flash_multiphase", "azeotrope_at_pressure", "azeotrope_at_temperature"]
 
 
 def flash_sensitivities(
@@ -232,3 +232,55 @@ def activity_coefficients(
     temperature outside the parameters' range an :class:`OutsideValidityError`.
     """
     return calculate("activity_coefficients", model, temperature, feed=composition, threads=threads, on_error=on_error)
+
+
+def flash_multiphase(
+    model: Model,
+    temperature: Any,
+    pressure: Any,
+    feed: Any,
+    *,
+    block: int = 64,
+    threads: Optional[int] = None,
+    progress: Optional[Any] = None,
+    on_error: str = "raise",
+    **options: Any,
+) -> Any:
+    """The phases of least Gibbs energy at ``temperature`` (K) and ``pressure`` (Pa) with any
+    number of fluid phases: a vapour and up to three liquids, found by stability-driven phase
+    addition and removal with Newton on the Gibbs energy (works with cubic, IAPWS-95 and
+    solution models).
+
+    Options: ``allow_vapor`` (``False`` for liquid–liquid equilibrium only), ``max_liquids``
+    (1–3), ``tolerance``, ``max_ss_iterations``, ``max_newton_iterations``, ``certificate``,
+    ``stability`` (a dict). Fields: those of a PT flash (``num_phases``, ``phase_kinds`` —
+    ``"vapor"``, ``"liquid"``, ``"liquid2"``, ``"liquid3"`` by decreasing density after the
+    vapour —, ``phase_fractions``, ``compositions`` ...).
+    """
+    return calculate(
+        "flash_multiphase", model, temperature, pressure, feed=feed, block=block, threads=threads,
+        progress=progress, on_error=on_error, **options,
+    )
+
+
+_AZEOTROPE_DOC = """The azeotrope of a binary model at given {given}: the state where the liquid and the vapour
+have the same composition, by Newton on equal fugacities, started from the composition of
+``feed`` (two amounts, mol) and, failing that, from a scan of x1 over (0, 1).
+
+Fields: ``temperature`` (K), ``pressure`` (Pa), ``composition`` (x = y), ``ln_phi``,
+``molar_volumes`` (m3/mol; liquid, vapour), ``residual``, ``iterations``. Options:
+``tolerance``, ``max_iterations``, ``scan_points``. A binary without an azeotrope there is a
+:class:`NoSolutionError` giving the range of ln(K1/K2) seen.
+"""
+
+
+def azeotrope_at_pressure(model: Model, pressure: Any, feed: Any = (0.5, 0.5), **options: Any) -> Any:
+    return calculate("azeotrope_at_pressure", model, pressure, feed=feed, **options)
+
+
+def azeotrope_at_temperature(model: Model, temperature: Any, feed: Any = (0.5, 0.5), **options: Any) -> Any:
+    return calculate("azeotrope_at_temperature", model, temperature, feed=feed, **options)
+
+
+azeotrope_at_pressure.__doc__ = _AZEOTROPE_DOC.format(given="pressure (Pa)")
+azeotrope_at_temperature.__doc__ = _AZEOTROPE_DOC.format(given="temperature (K)")

@@ -498,7 +498,7 @@ class Properties(_Record):
 # ---------------------------------------------------------------------------------------------
 # Many points
 
-_KINDS = np.array(["", "vapor", "liquid", "liquid2", "solid", "other"])
+_KINDS = np.array(["", "vapor", "liquid", "liquid2", "solid", "liquid3", "other"])
 
 
 def _frame_columns(names: List[str], prefix: str, values: np.ndarray) -> Dict[str, np.ndarray]:

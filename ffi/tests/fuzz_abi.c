@@ -17,7 +17,7 @@
  *  - every success returns finite numbers (no NaN or inf read back as a value), except where
  *    the header documents NaN (the certificate when not computed; a failed batch point).
  *
- * usage: fuzz_abi [--inputs N] [--seed S] [--start I] [--seconds T] [--verbose]
+ * usage: fuzz_abi [--inputs N] [--seed S] [--start I] [--seconds T] [--verbose] [--verbose-at I]
  * Exit status 0 when the property held on every input, 1 otherwise. */
 #define _POSIX_C_SOURCE 200809L
 #include "tieline.h"
@@ -91,6 +91,7 @@ static unsigned long long inputs_run = 0, calls_ok = 0, calls_failed = 0, violat
 static unsigned long long current_input = 0, seed = 1;
 static const char *current_op = "setup";
 static int verbose = 0;
+static unsigned long long verbose_at = ~0ull; /* --verbose-at I: details of input I only */
 
 static void on_signal(int sig) {
   char buf[256];
@@ -173,12 +174,9 @@ static void expect_finite_n(const double *x, size_t n, const char *what) {
   }
 }
 static void show_model(const tl_model *m) {
-  char buf[4096];
+  static char buf[1 << 16];
   size_t needed = 0;
-  if (tl_model_to_json(m, buf, sizeof buf, &needed) == TL_STATUS_OK) {
-    buf[300] = 0;
-    fprintf(stderr, "  model %s...\n", buf);
-  }
+  if (tl_model_to_json(m, buf, sizeof buf, &needed) == TL_STATUS_OK) fprintf(stderr, "  model %s\n", buf);
 }
 static void show_feed(const double *n, size_t len) {
   fprintf(stderr, "  feed (%zu)", len);
@@ -1044,8 +1042,9 @@ int main(int argc, char **argv) {
     else if (!strcmp(argv[i], "--start") && i + 1 < argc) start = strtoull(argv[++i], NULL, 10);
     else if (!strcmp(argv[i], "--seconds") && i + 1 < argc) seconds = strtod(argv[++i], NULL);
     else if (!strcmp(argv[i], "--verbose")) verbose = 1;
+    else if (!strcmp(argv[i], "--verbose-at") && i + 1 < argc) verbose_at = strtoull(argv[++i], NULL, 10);
     else {
-      fprintf(stderr, "usage: fuzz_abi [--inputs N] [--seed S] [--start I] [--seconds T] [--verbose]\n");
+      fprintf(stderr, "usage: fuzz_abi [--inputs N] [--seed S] [--start I] [--seconds T] [--verbose] [--verbose-at I]\n");
       return 2;
     }
   }
@@ -1079,6 +1078,7 @@ int main(int argc, char **argv) {
     current_input = i;
     rng_state = seed * 0x2545F4914F6CDD1Dull ^ (i + 1) * 0x9E3779B97F4A7C15ull;
     next_u64();
+    if (verbose_at != ~0ull) verbose = i == verbose_at;
     if (verbose) fprintf(stderr, "input %llu\n", i);
     one_input();
     ++inputs_run;

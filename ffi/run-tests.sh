@@ -3,8 +3,12 @@
 #  1. installs cbindgen 0.29.4 and cmake if missing;
 #  2. runs the Rust tests of the ffi crate and builds the library in release;
 #  3. checks that the checked-in header ffi/include/tieline.h is up to date;
-#  4. configures, builds and runs the C/C++ tests with ctest (shared and static library);
-#  5. runs the same tests once more under valgrind (no leak, no error);
+#  4. configures, builds and runs the C/C++ tests with ctest (shared and static library),
+#     among them threads_c (8 threads sharing one model, mixed calls, bit for bit) and
+#     fuzz_smoke (20 000 inputs of the ABI fuzzer, ffi/tests/fuzz_abi.c);
+#  5. runs the same tests once more under valgrind (no leak, no error), then built with
+#     AddressSanitizer and UndefinedBehaviorSanitizer (the fuzz smoke run included, with
+#     fewer inputs in both);
 #  6. installs to a temporary prefix, builds examples/cpp/vessel_blowdown against the
 #     installed package with find_package(tieline CONFIG), and a C program with pkg-config,
 #     and runs them.
@@ -45,9 +49,23 @@ ctest --test-dir "$build/main" --output-on-failure
 
 step "C/C++ tests under valgrind"
 cmake -S ffi -B "$build/valgrind" -DTIELINE_RUST_LIB_DIR="$root/target/release" -DCMAKE_BUILD_TYPE=Debug \
-  "-DTIELINE_TEST_LAUNCHER=valgrind;--error-exitcode=1;--leak-check=full;--errors-for-leak-kinds=definite,indirect,possible;--suppressions=$root/ffi/tests/valgrind.supp;-q" >/dev/null
+  "-DTIELINE_TEST_LAUNCHER=valgrind;--error-exitcode=1;--leak-check=full;--errors-for-leak-kinds=definite,indirect,possible;--suppressions=$root/ffi/tests/valgrind.supp;-q" \
+  -DTIELINE_FUZZ_INPUTS=300 >/dev/null
 cmake --build "$build/valgrind" -j "$jobs"
 ctest --test-dir "$build/valgrind" --output-on-failure
+
+step "C/C++ tests under AddressSanitizer and UndefinedBehaviorSanitizer"
+# The test programs are instrumented (gcc -fsanitize=address,undefined); the Rust library is
+# not, but its heap goes through malloc/free, which ASan intercepts, so an overflow of a
+# buffer the library writes into, a use after free of a handle's memory, and leaks are
+# caught. LeakSanitizer is on: the library's process-lifetime statics stay reachable.
+san="-fsanitize=address,undefined -fno-omit-frame-pointer -fno-sanitize-recover=all"
+cmake -S ffi -B "$build/asan" -DTIELINE_RUST_LIB_DIR="$root/target/release" -DCMAKE_BUILD_TYPE=Debug \
+  "-DCMAKE_C_FLAGS=$san" "-DCMAKE_CXX_FLAGS=$san" "-DCMAKE_EXE_LINKER_FLAGS=-fsanitize=address,undefined" \
+  -DTIELINE_FUZZ_INPUTS=5000 >/dev/null
+cmake --build "$build/asan" -j "$jobs"
+ASAN_OPTIONS=detect_leaks=1:abort_on_error=0:halt_on_error=1 UBSAN_OPTIONS=print_stacktrace=1:halt_on_error=1 \
+  ctest --test-dir "$build/asan" --output-on-failure
 
 step "install to a prefix; example and pkg-config consumers"
 prefix="$build/prefix"

@@ -228,7 +228,9 @@ impl Plan {
                 ),
             ));
         }
-        (self.calc.run)(self.calc.name, &self.options, ws, model, args, feed)
+        let rec = (self.calc.run)(self.calc.name, &self.options, ws, model, args, feed)?;
+        rec.check_finite(feed)?;
+        Ok(rec)
     }
 }
 
@@ -402,7 +404,8 @@ fn reaction_fields(rec: &mut Record, sys: &ReactionSystem, r: &ReactionResult) {
         .number("entropy", "J/K", r.entropy)
         .number("gibbs_energy", "J", r.gibbs)
         .number("cp_equilibrium", "J/K", r.cp_equilibrium)
-        .number("cv_equilibrium", "J/K", r.cv_equilibrium)
+        // NaN where c_v is not defined (no gas, so no dV/dp): absent, not a number.
+        .maybe("cv_equilibrium", "J/K", Some(r.cv_equilibrium).filter(|v| !v.is_nan()))
         .number("cp_frozen", "J/K", r.cp_frozen)
         .number("volume", "m3", r.volume)
         .count("iterations", r.iterations)
@@ -1062,6 +1065,143 @@ mod tests {
     fn model() -> Model {
         let bank = DataBank::embedded();
         Model::from(CubicEos::new(CubicKind::PengRobinson, bank.get_many(&["methane", "propane"]).unwrap()).unwrap())
+    }
+
+    // Found by the C ABI fuzzer (ffi/tests/fuzz_abi.c): a subnormal amount (5e-324 mol) gave
+    // x_i = 0 and an infinite ideal-mixing entropy, so S, G and A were ±inf.
+    #[test]
+    fn a_subnormal_amount_gives_finite_properties() {
+        let m = model();
+        let n = [9.0, 5e-324];
+        let st = crate::model::PhaseState::new(
+            &m,
+            760.314_925_040_093_7,
+            41_874.255_186_636_576,
+            &n,
+            crate::model::RootChoice::Stable,
+        )
+        .unwrap();
+        let p = st.properties(&m).unwrap();
+        for v in [p.entropy, p.gibbs, p.helmholtz, p.enthalpy, p.cp] {
+            assert!(v.is_finite(), "{p:?}");
+        }
+        let plan = Plan::new("flash_pt", None).unwrap();
+        let rec = plan.run(&mut Workspace::default(), &m, &[630.0, 1222.0], &n).unwrap();
+        assert!(rec.get_number("entropy").unwrap().is_finite());
+        assert!(rec.get_number("gibbs_energy").map_or(true, f64::is_finite));
+    }
+
+    // Found by the C ABI fuzzer: a reaction at fixed (p, S) with a feed of 1e300 mol overflowed
+    // the extensive results (V, U, c_v = ±inf); a record never carries a non-finite number.
+    #[test]
+    fn an_overflowing_record_is_no_solution() {
+        let bank = DataBank::embedded();
+        let m = Model::from(CubicEos::new(CubicKind::PengRobinson, bank.get_many(&["methane"]).unwrap()).unwrap());
+        let plan = Plan::new("reaction_sp", None).unwrap();
+        let e = plan
+            .run(&mut Workspace::default(), &m, &[12093.8, 495.233], &[1e300])
+            .unwrap_err();
+        assert_eq!(e.kind(), crate::error::ErrorKind::NoSolution, "{e}");
+        assert!(e.to_string().contains("floating-point range"), "{e}");
+        // The same calculation at 1 mol is a finite answer.
+        let rec = plan.run(&mut Workspace::default(), &m, &[12093.8, 495.233], &[1.0]);
+        if let Ok(rec) = rec {
+            assert!(rec.check_finite(&[1.0]).is_ok());
+        }
+    }
+
+    // Found by the C ABI fuzzer: a negative stability threshold made the flash certificate
+    // call a phase without stationary points unstable and index its (empty) list of points,
+    // a panic. A threshold outside [0, 1) is invalid input, in the flash and the stability test.
+    #[test]
+    fn a_negative_stability_threshold_is_invalid_input() {
+        let m = model();
+        let mut opts = FlashOptions::default();
+        opts.stability.threshold = -0.5;
+        let e = crate::equilibrium::flash_pt(&m, 333.6, 1.4e9, &[0.6, 0.4], &opts).unwrap_err();
+        assert_eq!(e.kind(), crate::error::ErrorKind::InvalidInput, "{e}");
+        assert!(e.to_string().contains("threshold"), "{e}");
+        for bad in [f64::NAN, f64::INFINITY, 1.0] {
+            opts.stability.threshold = bad;
+            assert!(crate::equilibrium::flash_pt(&m, 300.0, 1e6, &[0.6, 0.4], &opts).is_err());
+            let e = crate::equilibrium::stability(&m, 300.0, 1e6, &[0.6, 0.4], &opts.stability).unwrap_err();
+            assert_eq!(e.kind(), crate::error::ErrorKind::InvalidInput, "{e}");
+        }
+        opts.stability.threshold = 0.0;
+        assert!(crate::equilibrium::flash_pt(&m, 300.0, 1e6, &[0.6, 0.4], &opts).is_ok());
+    }
+
+    // Found by the C ABI fuzzer: the same solid given twice "coexisted" with itself, a
+    // boundary with Δv = Δs = 0 and a NaN Clapeyron slope. It is no solution now.
+    #[test]
+    fn a_solid_given_twice_has_no_boundary_with_itself() {
+        use crate::equilibrium::{PurePhase, PurePhases};
+        use crate::model::solid::{FusionData, FusionSolid, SolidModel};
+        let bank = DataBank::embedded();
+        let m = CubicEos::new(CubicKind::PengRobinson, bank.get_many(&["carbon dioxide"]).unwrap()).unwrap();
+        let dry_ice = FusionSolid::anchored(&m, 0, FusionData::carbon_dioxide()).unwrap();
+        let set = PurePhases::new(&m, 0, vec![&dry_ice as &dyn SolidModel, &dry_ice]).unwrap();
+        let at_t = set.coexistence_at_temperature(PurePhase::Solid(0), PurePhase::Solid(1), 200.0, None);
+        assert!(at_t.is_err(), "a boundary of a solid with itself: {at_t:?}");
+        let at_p = set.coexistence_at_pressure(PurePhase::Solid(0), PurePhase::Solid(1), 189_560.270_046_948_7, None);
+        assert!(at_p.is_err(), "a boundary of a solid with itself: {at_p:?}");
+        // A real boundary still reads: solid CO2 against its vapour.
+        let c = set
+            .coexistence_at_temperature(PurePhase::Solid(0), PurePhase::Vapor, 190.0, None)
+            .unwrap();
+        assert!(c.clapeyron_slope.is_finite() && c.clapeyron_slope > 0.0);
+    }
+
+    // Found by the C ABI fuzzer: fusion data with a huge negative Δcp (finite, so accepted)
+    // gave the solid c_p = 1.8e308 J/(mol K) and S = -inf, G = +inf far from the triple point.
+    #[test]
+    fn an_overflowing_fusion_solid_is_not_evaluated() {
+        use crate::equilibrium::{PurePhase, PurePhases};
+        use crate::model::solid::{FusionData, FusionSolid, SolidModel};
+        let bank = DataBank::embedded();
+        let m = CubicEos::new(CubicKind::PengRobinson, bank.get_many(&["carbon dioxide"]).unwrap()).unwrap();
+        let mut data = FusionData::carbon_dioxide();
+        data.delta_cp = -f64::MAX;
+        data.t_min = 0.5;
+        let solid = FusionSolid::anchored(&m, 0, data).unwrap();
+        let e = solid.properties(0.981_527_573_608_195_2, 1e5).unwrap_err();
+        assert_eq!(e.kind(), crate::error::ErrorKind::NoSolution, "{e}");
+        let set = PurePhases::new(&m, 0, vec![&solid as &dyn SolidModel]).unwrap();
+        assert!(
+            set.evaluate(PurePhase::Solid(0), 0.981_527_573_608_195_2, 1e5)
+                .unwrap()
+                .is_none()
+        );
+        if let Ok(st) = set.stable_phase(0.981_527_573_608_195_2, 1e5) {
+            assert!(st.stable.gibbs.is_finite() && st.stable.entropy.is_finite());
+        }
+    }
+
+    // Found by the C ABI fuzzer: carbon monoxide at 523 K and 3.3e-151 Pa has v ≈ 1.3e154
+    // m3/mol, whose square overflows in the speed of sound (w = inf).
+    #[test]
+    fn properties_that_overflow_are_no_solution() {
+        let bank = DataBank::embedded();
+        let m = CubicEos::new(
+            CubicKind::SoaveRedlichKwong,
+            bank.get_many(&["carbon monoxide"]).unwrap(),
+        )
+        .unwrap();
+        let st = crate::model::PhaseState::new(
+            &m,
+            522.995_351_573_276_4,
+            3.323_433_851_751_250_5e-151,
+            &[0.477_427_063_128_477_8],
+            crate::model::RootChoice::Stable,
+        )
+        .unwrap();
+        match st.properties(&m) {
+            Ok(p) => assert!(
+                p.speed_of_sound.is_finite() && p.isothermal_compressibility.is_finite(),
+                "{p:?}"
+            ),
+            Err(e) => assert_eq!(e.kind(), crate::error::ErrorKind::NoSolution, "{e}"),
+        }
     }
 
     #[test]

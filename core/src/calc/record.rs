@@ -109,6 +109,32 @@ impl Record {
         self.push(name, unit, Value::Table(rows))
     }
 
+    /// Checks that every number of the record is finite: a NaN or an infinity (e.g. an
+    /// extensive quantity that overflowed for a feed of 1e300 mol) is an
+    /// [`Error::NoSolution`] naming the field and the feed total (mol), never a value.
+    pub fn check_finite(&self, feed: &[f64]) -> Result<()> {
+        for f in &self.fields {
+            let bad = match &f.value {
+                Value::Number(x) => (!x.is_finite()).then_some(*x),
+                Value::Numbers(v) => v.iter().copied().find(|x| !x.is_finite()),
+                Value::Table(rows) => rows.iter().flatten().copied().find(|x| !x.is_finite()),
+                _ => None,
+            };
+            if let Some(x) = bad {
+                return Err(Error::NoSolution(format!(
+                    "the {} result has {} for '{}' ({}), not a finite number: the floating-point range is \
+                     exceeded at these inputs (feed total {} mol); scale the feed amounts down",
+                    self.kind,
+                    crate::error::num(x),
+                    f.name,
+                    if f.unit.is_empty() { "1" } else { f.unit.as_ref() },
+                    crate::error::num(feed.iter().sum::<f64>())
+                )));
+            }
+        }
+        Ok(())
+    }
+
     /// The field called `name`, if the record has one.
     pub fn field(&self, name: &str) -> Option<&Field> {
         self.fields.iter().find(|f| f.name == name)

@@ -92,7 +92,7 @@ impl FlashOptions {
                 format!("{}; a value in (0, 1e-2) is required", num(self.stability.tolerance)),
             ));
         }
-        Ok(())
+        self.stability.check_threshold()
     }
 }
 

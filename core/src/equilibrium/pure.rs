@@ -282,13 +282,27 @@ impl<'a, F: FluidModel + ?Sized> PurePhases<'a, F> {
         Ok(StablePhase { stable, candidates: c })
     }
 
-    fn coexistence_from(&self, a: PhasePoint, b: PhasePoint, iterations: usize) -> Coexistence {
+    fn coexistence_from(&self, a: PhasePoint, b: PhasePoint, iterations: usize) -> Result<Coexistence> {
         let (dh, ds, dv) = (
             b.enthalpy - a.enthalpy,
             b.entropy - a.entropy,
             b.molar_volume - a.molar_volume,
         );
-        Coexistence {
+        // Two phases with the same state (e.g. one solid model given twice) have equal Gibbs
+        // energies everywhere: no boundary, and Δs/Δv would be 0/0.
+        if !(ds / dv).is_finite() {
+            return Err(Error::NoSolution(format!(
+                "{:?} and {:?} have the same molar volume at T = {t} K, p = {p} Pa (Δv = {dv} m3/mol, \
+                 Δs = {ds} J/(mol K)): no boundary between them (the same solid given twice?)",
+                a.phase,
+                b.phase,
+                t = num(a.temperature),
+                p = num(a.pressure),
+                dv = num(dv),
+                ds = num(ds)
+            )));
+        }
+        Ok(Coexistence {
             temperature: a.temperature,
             pressure: a.pressure,
             phases: (a.phase, b.phase),
@@ -298,7 +312,7 @@ impl<'a, F: FluidModel + ?Sized> PurePhases<'a, F> {
             delta_v: dv,
             clapeyron_slope: ds / dv,
             iterations,
-        }
+        })
     }
 
     /// Coexistence of phases `a` and `b` at temperature T (K): the pressure (Pa) where their
@@ -347,7 +361,7 @@ impl<'a, F: FluidModel + ?Sized> PurePhases<'a, F> {
             resid = f.abs();
             let dv = pa.molar_volume - pb.molar_volume;
             if resid < tol {
-                return Ok(self.coexistence_from(pa, pb, it));
+                return self.coexistence_from(pa, pb, it);
             }
             let pn = if log {
                 let slope = p * dv / rt; // d f/d ln p
@@ -453,7 +467,7 @@ impl<'a, F: FluidModel + ?Sized> PurePhases<'a, F> {
             let f = (pa.gibbs - pb.gibbs) / rt;
             resid = f.abs();
             if resid < tol {
-                return Ok(self.coexistence_from(pa, pb, it));
+                return self.coexistence_from(pa, pb, it);
             }
             // d(Δg)/dT = −Δs.
             let ds = pa.entropy - pb.entropy;

@@ -112,6 +112,20 @@ pub fn wilson_ln_k<M: FluidModel + ?Sized>(model: &M, t: f64, p: f64, out: &mut 
     }
 }
 
+impl StabilityOptions {
+    /// The threshold must be finite and in [0, 1): a negative one would call a phase with no
+    /// stationary point below its tangent plane unstable.
+    pub(crate) fn check_threshold(&self) -> Result<()> {
+        if !(self.threshold >= 0.0 && self.threshold < 1.0) {
+            return Err(crate::error::Error::invalid(
+                "stability threshold",
+                format!("{}; a value in [0, 1) is required", crate::error::num(self.threshold)),
+            ));
+        }
+        Ok(())
+    }
+}
+
 /// Tests the stability of a phase of amounts `n` (mol) at (T (K), p (Pa)).
 pub fn stability<M: FluidModel + ?Sized>(
     model: &M,
@@ -123,6 +137,7 @@ pub fn stability<M: FluidModel + ?Sized>(
     check::temperature(t)?;
     check::pressure(p)?;
     check::amounts(n, model.num_components())?;
+    opts.check_threshold()?;
     let mut ws = EquilibriumWork::new(model.num_components());
     let mut res = StabilityResult::default();
     stability_with(model, t, p, n, opts, &[], &mut ws, &mut res).map_err(|e| {

@@ -558,6 +558,15 @@ impl SolidModel for FusionSolid {
         let v = d.solid_molar_volume;
         let h = self.h_anchor + self.cp * (t - d.t_triple) + v * (p - self.anchor_pressure);
         let s = self.s_anchor + self.cp * (t / d.t_triple).ln();
+        // Extreme (finite) fusion data, e.g. Δcp = -1.8e308 J/(mol K), overflow here.
+        if !(h - t * s).is_finite() {
+            return Err(Error::NoSolution(format!(
+                "the solid's Gibbs energy overflows at T = {t} K, p = {p} Pa (c_p = {cp} J/(mol K) from the fusion data)",
+                t = num(t),
+                p = num(p),
+                cp = num(self.cp)
+            )));
+        }
         Ok(SolidProperties {
             temperature: t,
             pressure: p,

@@ -193,7 +193,15 @@ impl PhaseState {
             if self.n[i] > 0.0 {
                 let ig = model.ideal_gas(t, i)?;
                 h_ig += self.n[i] * ig.h;
-                s_ig += self.n[i] * (ig.s - R * (x[i] * p / P_STANDARD).ln());
+                // ln(x_i p / p°) from its parts when the product underflows (a subnormal
+                // amount such as 5e-324 mol gives x_i = 0 and ln 0 = -inf otherwise).
+                let arg = x[i] * p / P_STANDARD;
+                let ln_arg = if arg.is_normal() {
+                    arg.ln()
+                } else {
+                    self.n[i].ln() - ntot.ln() + p.ln() - P_STANDARD.ln()
+                };
+                s_ig += self.n[i] * (ig.s - R * ln_arg);
                 cp_ig += self.n[i] * ig.cp;
             }
         }
@@ -236,6 +244,38 @@ impl PhaseState {
             residual_entropy: s_r / ntot,
             residual_gibbs: (h_r - t * s_r) / ntot,
         };
+        // At extreme states (p = 1e-151 Pa: v² overflows in the speed of sound) a property
+        // can leave the floating-point range; that is an error, never an inf or NaN value.
+        let scalars = [
+            ("molar_volume", props.molar_volume),
+            ("molar_density", props.molar_density),
+            ("enthalpy", props.enthalpy),
+            ("entropy", props.entropy),
+            ("gibbs", props.gibbs),
+            ("helmholtz", props.helmholtz),
+            ("cp", props.cp),
+            ("cv", props.cv),
+            ("speed_of_sound", props.speed_of_sound),
+            ("joule_thomson", props.joule_thomson),
+            ("isothermal_compressibility", props.isothermal_compressibility),
+            ("thermal_expansion", props.thermal_expansion),
+            ("residual_gibbs", props.residual_gibbs),
+        ];
+        if let Some((name, v)) = scalars.iter().find(|(_, v)| !v.is_finite()) {
+            return Err(Error::NoSolution(format!(
+                "the properties at T = {t} K, p = {p} Pa leave the floating-point range ({name} = {v})",
+                t = num(t),
+                p = num(p),
+                v = num(*v)
+            )));
+        }
+        if props.ln_phi.iter().any(|v| !v.is_finite()) {
+            return Err(Error::NoSolution(format!(
+                "the fugacity coefficients at T = {t} K, p = {p} Pa leave the floating-point range",
+                t = num(t),
+                p = num(p)
+            )));
+        }
         Ok(props)
     }
 }

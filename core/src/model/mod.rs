@@ -16,7 +16,7 @@ pub mod if97;
 pub mod solid;
 pub mod state;
 
-pub use activity::{ActivityModel, ExcessDerivs, ExcessGibbs, Margules, Nrtl};
+pub use activity::{ActivityModel, ExcessDerivs, ExcessGibbs, Margules, Nrtl, Unifac, Uniquac, Wilson};
 pub use any::Model;
 pub use cubic::{CubicEos, CubicKind, CubicSpec, KijMatrix, MixingRule};
 pub use description::{ModelDescription, model_from_json};

@@ -73,9 +73,17 @@ pub trait ExcessGibbs: Send + Sync {
 
 mod margules;
 mod nrtl;
+mod pairs;
+mod unifac;
+mod uniquac;
+mod wilson;
 
 pub use margules::{Margules, MargulesParams};
 pub use nrtl::{Nrtl, NrtlParams};
+pub use pairs::{ActivityPairs, MissingPairs, NrtlPair, UniquacPair, WilsonPair};
+pub use unifac::{Unifac, UnifacInteraction, UnifacParams, UnifacSubgroup, UnifacTable};
+pub use uniquac::{COORDINATION_NUMBER, Uniquac, UniquacParams};
+pub use wilson::{Wilson, WilsonParams};
 
 use crate::error::{Error, check, num};
 use crate::substance::R;
@@ -90,6 +98,12 @@ use serde::{Deserialize, Serialize};
 pub enum ActivityModel {
     /// Non-random two-liquid model ([`Nrtl`]).
     Nrtl(Nrtl),
+    /// Wilson model ([`Wilson`]).
+    Wilson(Wilson),
+    /// UNIQUAC model ([`Uniquac`]).
+    Uniquac(Uniquac),
+    /// UNIFAC group-contribution model ([`Unifac`]).
+    Unifac(Unifac),
     /// Two-suffix Margules model ([`Margules`]).
     Margules(Margules),
 }
@@ -115,6 +129,9 @@ macro_rules! delegate {
     ($self:ident, $m:ident => $e:expr) => {
         match $self {
             ActivityModel::Nrtl($m) => $e,
+            ActivityModel::Wilson($m) => $e,
+            ActivityModel::Uniquac($m) => $e,
+            ActivityModel::Unifac($m) => $e,
             ActivityModel::Margules($m) => $e,
         }
     };
@@ -139,6 +156,24 @@ impl ExcessGibbs for ActivityModel {
 impl From<Nrtl> for ActivityModel {
     fn from(m: Nrtl) -> Self {
         ActivityModel::Nrtl(m)
+    }
+}
+
+impl From<Wilson> for ActivityModel {
+    fn from(m: Wilson) -> Self {
+        ActivityModel::Wilson(m)
+    }
+}
+
+impl From<Uniquac> for ActivityModel {
+    fn from(m: Uniquac) -> Self {
+        ActivityModel::Uniquac(m)
+    }
+}
+
+impl From<Unifac> for ActivityModel {
+    fn from(m: Unifac) -> Self {
+        ActivityModel::Unifac(m)
     }
 }
 
@@ -228,7 +263,6 @@ pub(crate) fn rows(flat: &[f64], nc: usize) -> Vec<Vec<f64>> {
 }
 
 /// A vector of per-component values: length `nc`, each finite and > 0.
-#[allow(dead_code)]
 pub(crate) fn positive_vector(what: &str, v: &[f64], nc: usize) -> Result<()> {
     if v.len() != nc {
         return Err(Error::invalid(
@@ -301,6 +335,83 @@ pub(crate) fn scratch(v: &mut Vec<f64>, len: usize) -> &mut [f64] {
         v.resize(len, 0.0);
     }
     &mut v[..len]
+}
+
+/// The residual term shared by UNIQUAC (over components) and UNIFAC (over groups), after
+/// Abrams & Prausnitz (1975), *AIChE J.* 21:116, eq. for ln γ^R: for weights w_i (q'_i or
+/// Q_k), amounts y_i (any scale) and interaction factors P_ij (τ_ij or Ψ_mn),
+///
+/// v_i = w_i [1 − ln(U_i/W) − Σ_j w_j y_j P_ij/U_j],  U_i = Σ_j w_j y_j P_ji,  W = Σ_j w_j y_j.
+///
+/// Fills `val` (v_i), with `dy` the derivatives ∂v_i/∂y_k (row-major, symmetric; v is
+/// homogeneous of degree 0 in y) and with `dp` (∂P/∂T) the temperature derivatives `dval`.
+/// `u` and `du` are scratch of length m.
+pub(crate) struct Residual<'a> {
+    pub w: &'a [f64],
+    pub y: &'a [f64],
+    pub p: &'a [f64],
+    pub dp: Option<&'a [f64]>,
+}
+
+impl Residual<'_> {
+    pub(crate) fn eval(
+        &self,
+        val: &mut [f64],
+        dy: Option<&mut [f64]>,
+        dval: Option<&mut [f64]>,
+        u: &mut [f64],
+        du: &mut [f64],
+    ) {
+        let m = self.w.len();
+        let (w, y, p) = (self.w, self.y, self.p);
+        let mut wsum = 0.0;
+        for j in 0..m {
+            wsum += w[j] * y[j];
+        }
+        for i in 0..m {
+            let mut v = 0.0;
+            for j in 0..m {
+                v += w[j] * y[j] * p[j * m + i];
+            }
+            u[i] = v;
+        }
+        for i in 0..m {
+            let mut v = 1.0 - (u[i] / wsum).ln();
+            for j in 0..m {
+                v -= w[j] * y[j] * p[i * m + j] / u[j];
+            }
+            val[i] = w[i] * v;
+        }
+        if let Some(dy) = dy {
+            for i in 0..m {
+                for k in i..m {
+                    let mut v = 1.0 / wsum - p[k * m + i] / u[i] - p[i * m + k] / u[k];
+                    for j in 0..m {
+                        v += w[j] * y[j] * p[i * m + j] * p[k * m + j] / (u[j] * u[j]);
+                    }
+                    v *= w[i] * w[k];
+                    dy[i * m + k] = v;
+                    dy[k * m + i] = v;
+                }
+            }
+        }
+        if let (Some(dval), Some(dp)) = (dval, self.dp) {
+            for i in 0..m {
+                let mut v = 0.0;
+                for j in 0..m {
+                    v += w[j] * y[j] * dp[j * m + i];
+                }
+                du[i] = v;
+            }
+            for i in 0..m {
+                let mut v = -du[i] / u[i];
+                for j in 0..m {
+                    v -= w[j] * y[j] * (dp[i * m + j] - p[i * m + j] * du[j] / u[j]) / u[j];
+                }
+                dval[i] = w[i] * v;
+            }
+        }
+    }
 }
 
 #[cfg(test)]

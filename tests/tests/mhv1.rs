@@ -7,7 +7,7 @@
 
 use serde::Deserialize;
 use tieline::equilibrium::saturation::{SaturationOptions, bubble_pressure};
-use tieline::model::activity::{Nrtl, NrtlParams};
+use tieline::model::activity::{Nrtl, NrtlParams, Unifac};
 use tieline::model::{
     ActivityModel, CubicEos, CubicKind, ExcessDerivs, ExcessGibbs, FluidModel, FugacityWork, LnPhi, MixingRule, Model,
     Need, RootChoice, ln_phi, model_from_json,
@@ -28,6 +28,12 @@ struct BubbleCase {
     #[allow(dead_code)]
     source: String,
     kind: CubicKind,
+    /// "unifac_ethanol_water", or absent for the NRTL methanol–water set.
+    #[serde(default)]
+    activity: Option<String>,
+    /// "mhv2", or absent for MHV1.
+    #[serde(default)]
+    rule: Option<String>,
     t: f64,
     x1: f64,
     tolerance: f64,
@@ -72,14 +78,24 @@ fn nrtl(set: &NrtlSet) -> ActivityModel {
 }
 
 fn mhv1(kind: CubicKind, act: &ActivityModel) -> CubicEos {
-    let comps = DataBank::embedded().get_many(&["methanol", "water"]).unwrap();
-    CubicEos::new(kind, comps)
-        .unwrap()
-        .with_mixing(MixingRule::Mhv1 {
-            activity: act.clone(),
+    with_rule(kind, act, false)
+}
+
+/// The cubic over the activity model's components with MHV1 or MHV2 (default constants).
+fn with_rule(kind: CubicKind, act: &ActivityModel, mhv2: bool) -> CubicEos {
+    let names: Vec<&str> = act.component_names().iter().map(|s| s.as_str()).collect();
+    let comps = DataBank::embedded().get_many(&names).unwrap();
+    let activity = act.clone();
+    let rule = if mhv2 {
+        MixingRule::Mhv2 {
+            activity,
             q1: None,
-        })
-        .unwrap()
+            q2: None,
+        }
+    } else {
+        MixingRule::Mhv1 { activity, q1: None }
+    };
+    CubicEos::new(kind, comps).unwrap().with_mixing(rule).unwrap()
 }
 
 /// γ–φ bubble pressure with the same activity model: y_i φ_i^V(T, p, y) = x_i γ_i φ_i°(T, p),
@@ -117,21 +133,29 @@ fn gamma_phi_bubble(m: &CubicEos, act: &ActivityModel, t: f64, x: &[f64]) -> f64
 
 /// The rule's purpose (Michelsen 1990): the cubic with MHV1 reproduces the low-pressure VLE
 /// of its activity model. Bubble pressures of methanol–water (NRTL, source in the vectors
-/// file) at 333–350 K agree with the γ–φ values within the vectors' tolerance.
+/// file) and ethanol–water (UNIFAC) at 333–350 K agree with the γ–φ values within the
+/// vectors' tolerance. Measured: MHV1 within 0.2–4.3 %, MHV2 within 0.1–0.6 % (the second-order
+/// rule follows q(α) more closely, as Dahl & Michelsen 1990 intended).
 #[test]
 fn bubble_pressure_matches_gamma_phi() {
     let v = vectors();
-    let act = nrtl(&v.nrtl_methanol_water);
+    let nrtl_set = nrtl(&v.nrtl_methanol_water);
+    let unifac = ActivityModel::Unifac(Unifac::from_names(&["ethanol", "water"]).unwrap());
     let mut worst: f64 = 0.0;
     for c in &v.bubble_pressure {
-        let m = mhv1(c.kind, &act);
+        let act = match c.activity.as_deref() {
+            None => &nrtl_set,
+            Some("unifac_ethanol_water") => &unifac,
+            Some(other) => panic!("unknown activity set {other}"),
+        };
+        let m = with_rule(c.kind, act, c.rule.as_deref() == Some("mhv2"));
         let x = [c.x1, 1.0 - c.x1];
         let eos = bubble_pressure(&m, c.t, &x, &SaturationOptions::default()).unwrap();
-        let gp = gamma_phi_bubble(&m, &act, c.t, &x);
+        let gp = gamma_phi_bubble(&m, act, c.t, &x);
         let d = (eos.pressure - gp) / gp;
         eprintln!(
-            "{:?} T = {} K x1 = {}: p_EOS = {:.1} Pa, p_γφ = {:.1} Pa, rel. diff. {:+.4}",
-            c.kind, c.t, c.x1, eos.pressure, gp, d
+            "{:?} {:?} {:?} T = {} K x1 = {}: p_EOS = {:.1} Pa, p_γφ = {:.1} Pa, rel. diff. {:+.4}",
+            c.kind, c.activity, c.rule, c.t, c.x1, eos.pressure, gp, d
         );
         worst = worst.max(d.abs());
         assert!(d.abs() < c.tolerance, "{:?} {} {}: {d}", c.kind, c.t, c.x1);

@@ -871,7 +871,9 @@ impl CubicEos {
         let mut big_s_tt = 0.0;
         for i in 0..nc {
             let ai = alpha(i);
-            big_s += n[i] * (q1 * ai + q2 * ai * ai + (bm / self.b[i]).ln());
+            // ln(b/b_i), kept in `an` until ∂α/∂n_i replaces it below.
+            an[i] = (bm / self.b[i]).ln();
+            big_s += n[i] * (q1 * ai + q2 * ai * ai + an[i]);
         }
         let s = big_s / ntot;
         let (al, c) = if q2 == 0.0 {
@@ -901,7 +903,7 @@ impl CubicEos {
         for i in 0..nc {
             let ai = alpha(i);
             let bi = self.b[i];
-            let s_i = q1 * ai + q2 * ai * ai + ex.ln_gamma[i] + (bm / bi).ln() + bi / bm - 1.0;
+            let s_i = q1 * ai + q2 * ai * ai + ex.ln_gamma[i] + an[i] + bi / bm - 1.0;
             an[i] = (s_i - s) / (ntot * c);
             big_a_n[i] = al + ntot * an[i];
             di[i] = rt * (bi * big_a + bsum * big_a_n[i]);

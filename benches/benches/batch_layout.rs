@@ -6,7 +6,7 @@
 //!
 //! `cargo bench -p tieline-benches --bench batch_layout -- [threads] [points] [rounds]`
 //! (defaults: 2 threads, 100000 points, 3 rounds). The layouts alternate within each round,
-//! so drift of the machine affects all alike.
+//! in a rotating order, so drift of the machine affects all alike.
 
 #![allow(missing_docs)]
 
@@ -64,9 +64,9 @@ fn main() {
         ("blocks of 256, always warm", always(Partition::Blocks(256))),
         ("4 chunks per thread, always warm", always(Partition::Chunks)),
         (
-            "blocks of 64, warm when near",
+            "blocks of 256, warm when near",
             BatchLayout {
-                partition: Partition::Blocks(64),
+                partition: Partition::Blocks(256),
                 warm_start: WarmStart::Near,
             },
         ),
@@ -86,8 +86,11 @@ fn main() {
     );
     for (name, t, p) in [("sorted sweep", &ts, &ps), ("shuffled sweep", &th, &ph)] {
         let mut best = vec![f64::INFINITY; layouts.len()];
-        for _ in 0..rounds {
-            for (k, (_, layout)) in layouts.iter().enumerate() {
+        for round in 0..rounds {
+            // Each round starts with another layout, so that none is always first.
+            for j in 0..layouts.len() {
+                let k = (j + round) % layouts.len();
+                let layout = &layouts[k].1;
                 let s = Instant::now();
                 let r = flash_batch_with(&m, t, p, &z, &opts, threads, layout).expect("batch");
                 best[k] = best[k].min(s.elapsed().as_secs_f64());

@@ -11,7 +11,7 @@
 
 use crate::errors::check;
 use crate::{PyFlashOptions, PyModel, results, root_choice, saturation_options};
-use numpy::{PyArray1, PyArrayMethods, PyReadonlyArray1, PyUntypedArrayMethods};
+use numpy::{PyArray1, PyArrayMethods, PyUntypedArrayMethods};
 use pyo3::prelude::*;
 use pyo3::types::{PyFloat, PyList};
 use std::hint::black_box;
@@ -20,27 +20,14 @@ use tieline::equilibrium::{FlashOptions, flash_pt, saturation_pressure, saturati
 use tieline::model::{FluidModel, Model, PhaseState};
 
 /// Feed amounts (mol) taken as they are: a contiguous float64 1-D array or a list of floats
-/// with `nc` entries; None for anything else.
-enum Amounts<'py> {
-    Array(PyReadonlyArray1<'py, f64>),
-    List(Vec<f64>),
-}
-
-impl Amounts<'_> {
-    fn slice(&self) -> Option<&[f64]> {
-        match self {
-            Amounts::Array(a) => a.as_slice().ok(),
-            Amounts::List(v) => Some(v),
-        }
-    }
-}
-
-fn amounts<'py>(feed: &Bound<'py, PyAny>, nc: usize) -> Option<Amounts<'py>> {
+/// with `nc` entries, copied (a few values; cheaper than a tracked borrow of the array); None
+/// for anything else.
+fn amounts(feed: &Bound<'_, PyAny>, nc: usize) -> Option<Vec<f64>> {
     if let Ok(a) = feed.cast::<PyArray1<f64>>() {
         if a.len() != nc || !a.is_c_contiguous() {
             return None;
         }
-        return a.try_readonly().ok().map(Amounts::Array);
+        return a.to_vec().ok();
     }
     let l = feed.cast_exact::<PyList>().ok()?;
     if l.len() != nc {
@@ -50,7 +37,7 @@ fn amounts<'py>(feed: &Bound<'py, PyAny>, nc: usize) -> Option<Amounts<'py>> {
     for x in l.iter() {
         v.push(x.cast_exact::<PyFloat>().ok()?.value());
     }
-    Some(Amounts::List(v))
+    Some(v)
 }
 
 /// PT flash of one point (T in K, p in Pa, feed in mol) when the arguments need no
@@ -68,13 +55,10 @@ pub fn _flash_fast<'py>(
         return Ok(None);
     };
     let m = &m.get().inner;
-    let Some(a) = amounts(feed, m.num_components()) else {
+    let Some(n) = amounts(feed, m.num_components()) else {
         return Ok(None);
     };
-    let Some(n) = a.slice() else {
-        return Ok(None);
-    };
-    let r = check(py, flash_pt(&**m, temperature, pressure, n, &options.inner))?;
+    let r = check(py, flash_pt(&**m, temperature, pressure, &n, &options.inner))?;
     results::flash_result(py, r).map(Some)
 }
 
@@ -134,13 +118,10 @@ pub fn _properties_fast<'py>(
         return Ok(None);
     };
     let m = &m.get().inner;
-    let Some(a) = amounts(amounts_, m.num_components()) else {
+    let Some(n) = amounts(amounts_, m.num_components()) else {
         return Ok(None);
     };
-    let Some(n) = a.slice() else {
-        return Ok(None);
-    };
-    properties_of(py, m, temperature, pressure, n, root).map(Some)
+    properties_of(py, m, temperature, pressure, &n, root).map(Some)
 }
 
 /// Properties of one phase of `amounts` (mol, checked) at T (K) and p (Pa) on `root`.

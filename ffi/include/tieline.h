@@ -1235,11 +1235,11 @@ tl_status tl_flash(const struct tl_model *model,
  * `npts` values each; `feeds` holds either one feed of `nc` amounts (mol) shared by every
  * point, or `npts * nc` amounts (one row per point); `feeds_len` says which. `threads` = 0
  * uses one thread per available processor, otherwise that many threads (≤ 256); the threads
- * are started for the call and joined before it returns. Points are processed in contiguous
- * chunks (about four per thread), each by a fresh solver that warm-starts from point to
- * point, so order sweeps along T or p. The partition is that of the Rust
- * `tieline::equilibrium::flash_batch`, so the numbers equal the Rust batch's for the same
- * `threads`. `options` may be NULL.
+ * are started for the call and joined before it returns. Points are processed in blocks of
+ * consecutive points (1/64 of the batch, 16 to 64 points), each by a solver that warm-starts
+ * a point from the previous one when the two are close in T, p and feed, so order sweeps
+ * along T or p. The layout is that of the Rust `tieline::equilibrium::flash_batch`, so the
+ * numbers equal the Rust batch's, whatever `threads`. `options` may be NULL.
  *
  * The call returns `TL_STATUS_OK` when the batch ran; each point's own outcome is in
  * `out->status[i]` (a failed point does not spoil the others; its slots hold NaN). A point

@@ -6,7 +6,7 @@ use crate::model::{ModelData, model_ref, tl_model};
 use crate::result::{ResultData, store_flash, tl_phase_kind, tl_result, write};
 use std::sync::atomic::{AtomicUsize, Ordering};
 use std::sync::{Arc, Mutex, TryLockError};
-use tieline::equilibrium::batch::chunk_len;
+use tieline::equilibrium::batch::{BatchLayout, flash_run, run_len};
 use tieline::equilibrium::{FlashContext, FlashOptions, FlashResult, StabilityOptions, stability};
 use tieline::model::FluidModel;
 
@@ -301,11 +301,11 @@ pub struct tl_batch_output {
 /// `npts` values each; `feeds` holds either one feed of `nc` amounts (mol) shared by every
 /// point, or `npts * nc` amounts (one row per point); `feeds_len` says which. `threads` = 0
 /// uses one thread per available processor, otherwise that many threads (≤ 256); the threads
-/// are started for the call and joined before it returns. Points are processed in contiguous
-/// chunks (about four per thread), each by a fresh solver that warm-starts from point to
-/// point, so order sweeps along T or p. The partition is that of the Rust
-/// `tieline::equilibrium::flash_batch`, so the numbers equal the Rust batch's for the same
-/// `threads`. `options` may be NULL.
+/// are started for the call and joined before it returns. Points are processed in blocks of
+/// consecutive points (1/64 of the batch, 16 to 64 points), each by a solver that warm-starts
+/// a point from the previous one when the two are close in T, p and feed, so order sweeps
+/// along T or p. The layout is that of the Rust `tieline::equilibrium::flash_batch`, so the
+/// numbers equal the Rust batch's, whatever `threads`. `options` may be NULL.
 ///
 /// The call returns `TL_STATUS_OK` when the batch ran; each point's own outcome is in
 /// `out->status[i]` (a failed point does not spoil the others; its slots hold NaN). A point
@@ -386,9 +386,11 @@ pub unsafe extern "C" fn tl_flash_batch(
         } else {
             threads
         };
-        let chunk = chunk_len(npts, nthreads);
+        let layout = BatchLayout::default();
+        let chunk = run_len(&layout, npts, nthreads);
         let nchunks = npts.div_ceil(chunk);
         let next = AtomicUsize::new(0);
+        let feed = |i: usize| if per_point { &feeds[i * nc..(i + 1) * nc] } else { feeds };
         let work = || {
             loop {
                 let c = next.fetch_add(1, Ordering::Relaxed);
@@ -396,10 +398,10 @@ pub unsafe extern "C" fn tl_flash_batch(
                     break;
                 }
                 let mut ctx = FlashContext::new(nc);
-                for i in c * chunk..((c + 1) * chunk).min(npts) {
-                    let feed = if per_point { &feeds[i * nc..(i + 1) * nc] } else { feeds };
-                    w.point(i, ctx.flash(m, t[i], p[i], feed, &opts));
-                }
+                let range = c * chunk..((c + 1) * chunk).min(npts);
+                flash_run(&mut ctx, m, t, p, feed, range, &opts, layout.warm_start, |i, r| {
+                    w.point(i, r)
+                });
             }
         };
         let workers = nthreads.min(nchunks);

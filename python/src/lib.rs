@@ -8,9 +8,11 @@
 
 mod calc;
 mod errors;
+mod fast;
 mod parallel;
 mod pure;
 mod records;
+mod results;
 mod solids;
 mod sweeps;
 mod water;
@@ -817,7 +819,7 @@ fn flash_point<'py>(
         py,
         tieline::equilibrium::flash_pt(&*model.inner, temperature, pressure, n, &options.inner),
     )?;
-    records::flash_result(py, &r)
+    results::flash_result(py, r)
 }
 
 /// Tangent-plane stability test of one phase.
@@ -886,7 +888,7 @@ fn saturation_point<'py>(
         }
     };
     let r = check(py, r)?;
-    records::build(py, "SaturationPoint", &records::kwargs(py, &r)?)
+    results::saturation(py, r)
 }
 
 /// One bubble or dew point (`which` as in `bubble_dew_sweep`).
@@ -1035,7 +1037,7 @@ impl PyPhaseState {
     /// All thermodynamic properties of the phase.
     fn properties<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyAny>> {
         let p = check(py, self.state.properties(&*self.model))?;
-        records::properties(py, &p, self.state.kind)
+        results::properties(py, p, self.state.kind)
     }
 
     fn __repr__(&self) -> String {
@@ -1164,6 +1166,19 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<PyModel>()?;
     m.add_class::<PyFlashOptions>()?;
     m.add_class::<PyPhaseState>()?;
+    m.add_class::<results::PyFlashResult>()?;
+    m.add_class::<results::PyPhase>()?;
+    m.add_class::<results::PyTieLine>()?;
+    m.add_class::<results::PyFlashDiagnostics>()?;
+    m.add_class::<results::PyProperties>()?;
+    m.add_class::<results::PySaturationPoint>()?;
+    m.add_function(wrap_pyfunction!(fast::_flash_fast, m)?)?;
+    m.add_function(wrap_pyfunction!(fast::_saturation_fast, m)?)?;
+    m.add_function(wrap_pyfunction!(fast::_properties_fast, m)?)?;
+    m.add_function(wrap_pyfunction!(fast::properties_point, m)?)?;
+    m.add_function(wrap_pyfunction!(fast::_time_rust_flash, m)?)?;
+    m.add_function(wrap_pyfunction!(fast::_time_rust_saturation, m)?)?;
+    m.add_function(wrap_pyfunction!(fast::_time_rust_properties, m)?)?;
     m.add_class::<solids::PySolid>()?;
     m.add_function(wrap_pyfunction!(_bank_from_json, m)?)?;
     m.add_function(wrap_pyfunction!(_model_from_json, m)?)?;

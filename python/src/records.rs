@@ -6,8 +6,8 @@ use pyo3::prelude::*;
 use pyo3::sync::PyOnceLock;
 use pyo3::types::{PyDict, PyList, PyModule, PyTuple};
 use serde_json::Value;
-use tieline::equilibrium::{BubbleDew, FlashResult, Phase, StabilityResult};
-use tieline::model::{PhaseKind, Properties};
+use tieline::equilibrium::{BubbleDew, StabilityResult};
+use tieline::model::PhaseKind;
 
 static RESULTS: PyOnceLock<Py<PyModule>> = PyOnceLock::new();
 
@@ -91,52 +91,6 @@ pub fn build<'py>(py: Python<'py>, name: &str, kw: &Bound<'py, PyDict>) -> PyRes
     class(py, name)?.call((), Some(kw))
 }
 
-fn phase<'py>(py: Python<'py>, ph: &Phase) -> PyResult<Bound<'py, PyAny>> {
-    let kw = PyDict::new(py);
-    kw.set_item("kind", kind_name(ph.kind))?;
-    kw.set_item("amount", ph.amount)?;
-    kw.set_item("fraction", ph.fraction)?;
-    kw.set_item("composition", arr(py, &ph.composition))?;
-    kw.set_item("molar_volume", ph.molar_volume)?;
-    kw.set_item("z", ph.z)?;
-    kw.set_item("ln_phi", arr(py, &ph.ln_phi))?;
-    build(py, "Phase", &kw)
-}
-
-/// A flash result as `tieline.FlashResult`.
-pub fn flash_result<'py>(py: Python<'py>, r: &FlashResult) -> PyResult<Bound<'py, PyAny>> {
-    let phases: Vec<Bound<'py, PyAny>> = r.phases.iter().map(|p| phase(py, p)).collect::<PyResult<_>>()?;
-    let d = &r.diagnostics;
-    let dk = PyDict::new(py);
-    dk.set_item("stability_iterations", d.stability_iterations)?;
-    dk.set_item("ss_iterations", d.ss_iterations)?;
-    dk.set_item("accelerations", d.accelerations)?;
-    dk.set_item("newton_iterations", d.newton_iterations)?;
-    dk.set_item("residual", d.residual)?;
-    dk.set_item("certificate", d.certificate)?;
-    dk.set_item("certificate_iterations", d.certificate_iterations)?;
-    dk.set_item("warm_start", d.warm_start)?;
-    dk.set_item("splits_tried", d.splits_tried)?;
-    dk.set_item("gibbs", d.gibbs)?;
-    let kw = PyDict::new(py);
-    kw.set_item("temperature", r.temperature)?;
-    kw.set_item("pressure", r.pressure)?;
-    kw.set_item("feed", arr(py, &r.feed))?;
-    kw.set_item("phases", PyTuple::new(py, phases)?)?;
-    match &r.tie_line {
-        Some(tl) => {
-            let t = PyDict::new(py);
-            t.set_item("beta", tl.beta)?;
-            t.set_item("x", arr(py, &tl.x))?;
-            t.set_item("y", arr(py, &tl.y))?;
-            kw.set_item("tie_line", build(py, "TieLine", &t)?)?
-        }
-        None => kw.set_item("tie_line", py.None())?,
-    }
-    kw.set_item("diagnostics", build(py, "FlashDiagnostics", &dk)?)?;
-    build(py, "FlashResult", &kw)
-}
-
 /// A stability result as `tieline.StabilityResult`.
 pub fn stability_result<'py>(py: Python<'py>, r: &StabilityResult) -> PyResult<Bound<'py, PyAny>> {
     let kw = kwargs(py, r)?;
@@ -151,11 +105,4 @@ pub fn stability_result<'py>(py: Python<'py>, r: &StabilityResult) -> PyResult<B
 /// A bubble or dew point as `tieline.BubbleDewPoint`.
 pub fn bubble_dew<'py>(py: Python<'py>, r: &BubbleDew) -> PyResult<Bound<'py, PyAny>> {
     build(py, "BubbleDewPoint", &kwargs(py, r)?)
-}
-
-/// Phase properties as `tieline.Properties`, with the phase kind.
-pub fn properties<'py>(py: Python<'py>, r: &Properties, kind: PhaseKind) -> PyResult<Bound<'py, PyAny>> {
-    let kw = kwargs(py, r)?;
-    kw.set_item("kind", kind_name(Some(kind)))?;
-    build(py, "Properties", &kw)
 }

@@ -396,7 +396,7 @@ fn solid_flash_record<'py>(py: Python<'py>, r: &SolidFlashResult) -> PyResult<Bo
     kw.set_item("pressure", r.pressure)?;
     kw.set_item("feed", records::arr(py, &r.feed))?;
     match &r.fluid {
-        Some(f) => kw.set_item("fluid", records::flash_result(py, f)?)?,
+        Some(f) => kw.set_item("fluid", crate::results::flash_result(py, f.clone())?)?,
         None => kw.set_item("fluid", py.None())?,
     }
     kw.set_item("fluid_fractions", records::arr(py, &r.fluid_fractions))?;

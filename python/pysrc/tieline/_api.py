@@ -212,6 +212,12 @@ def _flash_options(
     )
 
 
+#: Options of the short path of scalar flashes: (certificate, negative_flash, max_phases).
+_FLASH_OPTIONS = {
+    (c, n, k): _flash_options(None, None, None, c, n, k) for c in (True, False) for n in (False, True) for k in (2, 3)
+}
+
+
 @overload
 def flash(
     model: Model,
@@ -319,6 +325,25 @@ def flash(
     ConvergenceError
         The solver did not converge (its diagnostics are attributes of the exception).
     """
+    if (
+        type(temperature) is float
+        and type(pressure) is float
+        and threads is None
+        and block is DEFAULT_BLOCK
+        and tolerance is None
+        and max_ss_iterations is None
+        and max_newton_iterations is None
+        and type(max_phases) is int
+        and type(certificate) is bool
+        and type(negative_flash) is bool
+    ):
+        # The short path of a scalar call: arguments that need no conversion go straight to
+        # the core (None when the model or feed needs the general path below).
+        opts = _FLASH_OPTIONS.get((certificate, negative_flash, max_phases))
+        if opts is not None:
+            r = _core._flash_fast(model, temperature, pressure, feed, opts)
+            if r is not None:
+                return r
     _check_model(model)
     _check_threads(threads)
     block = _count("block", block, 1, _core.MAX_POINTS)
@@ -479,6 +504,10 @@ def saturation_pressure(
     saturation state: :class:`NoSolutionError` (or a flagged point with ``on_error="flag"``).
     ``threads``, ``progress`` and ``on_error`` act as in :func:`flash`.
     """
+    if type(temperature) is float and type(component) is int and 0 <= component < 256 and tolerance is None and max_iterations is None and threads is None:
+        r = _core._saturation_fast(model, "temperature", temperature, component)
+        if r is not None:
+            return r
     return _saturation(model, "temperature", temperature, component, tolerance, max_iterations, threads, progress, on_error)
 
 
@@ -496,6 +525,10 @@ def saturation_temperature(
     """Boiling temperature (K) of a pure component at ``pressure`` (Pa), with the saturated
     densities (mol/m3) and the enthalpy of vaporisation (J/mol); see
     :func:`saturation_pressure` for the arguments and results."""
+    if type(pressure) is float and type(component) is int and 0 <= component < 256 and tolerance is None and max_iterations is None and threads is None:
+        r = _core._saturation_fast(model, "pressure", pressure, component)
+        if r is not None:
+            return r
     return _saturation(model, "pressure", pressure, component, tolerance, max_iterations, threads, progress, on_error)
 
 
@@ -666,12 +699,17 @@ def phase_properties(
     used, and the ``kind`` of the result says what it is. Scalars give :class:`Properties`;
     arrays (broadcast with the rows of ``amounts``) give a :class:`PropertyTable`.
     """
+    if type(temperature) is float and type(pressure) is float and type(root) is str:
+        r = _core._properties_fast(model, temperature, pressure, amounts, root)
+        if r is not None:
+            return r
     _check_model(model)
     if _is_scalar(temperature) and _is_scalar(pressure):
         z = _feed(model, amounts, "amounts")
         if z.ndim == 1:
-            st = _core.PhaseState(model, _scalar(temperature, "temperature"), _scalar(pressure, "pressure"), z.tolist(), root)
-            return st.properties()
+            return _core.properties_point(
+                model, _scalar(temperature, "temperature"), _scalar(pressure, "pressure"), z.tolist(), root
+            )
     raise_errors = _on_error(on_error)
     shape, (t, p), zf, _ = _broadcast(model, amounts, (temperature, "temperature"), (pressure, "pressure"))
     raw = _core.properties_sweep(model, t, p, zf, root, _check_threads(threads), raise_errors)

@@ -13,10 +13,12 @@ from typing import TYPE_CHECKING, Any, Dict, List, Optional, Tuple
 
 import numpy as np
 
+from ._core import FlashDiagnostics, FlashResult, Phase, Properties, SaturationPoint, TieLine
+
 if TYPE_CHECKING:  # pragma: no cover
     import pandas  # type: ignore[import-untyped, unused-ignore]
 
-    from ._core import Model, PhaseState
+    from ._core import Model, PhaseState  # noqa: F401
 
 __all__ = [
     "Phase",
@@ -53,7 +55,7 @@ __all__ = [
 
 
 def _plain(v: Any) -> Any:
-    if isinstance(v, _Record):
+    if isinstance(v, (_Record, _NATIVE)):
         return v.to_dict()
     if isinstance(v, np.ndarray):
         return v.tolist()
@@ -95,17 +97,7 @@ class _Record:
 
     def to_json(self) -> str:
         """The record as JSON text (see :meth:`to_dict`); non-finite numbers become null."""
-
-        def clean(v: Any) -> Any:
-            if isinstance(v, float) and not np.isfinite(v):
-                return None
-            if isinstance(v, list):
-                return [clean(x) for x in v]
-            if isinstance(v, dict):
-                return {k: clean(x) for k, x in v.items()}
-            return v
-
-        return json.dumps(clean(self.to_dict()))
+        return _json_text(self.to_dict())
 
     def __eq__(self, other: object) -> bool:
         if type(other) is not type(self):
@@ -113,6 +105,65 @@ class _Record:
         return _same(self.to_dict(), other.to_dict())  # type: ignore[attr-defined]
 
     __hash__ = None  # type: ignore[assignment]
+
+
+def _json_text(d: Dict[str, Any]) -> str:
+    """Plain record data as JSON text; non-finite numbers become null."""
+
+    def clean(v: Any) -> Any:
+        if isinstance(v, float) and not np.isfinite(v):
+            return None
+        if isinstance(v, list):
+            return [clean(x) for x in v]
+        if isinstance(v, dict):
+            return {k: clean(x) for k, x in v.items()}
+        return v
+
+    return json.dumps(clean(d))
+
+
+# The records of single-point flashes, saturation states and phase properties are compact
+# compiled classes (tieline._core): they hold the numbers as computed and build numpy arrays
+# when an attribute is read, so that a scalar call costs little more than the calculation.
+# Their methods that need Python libraries are these functions.
+_NATIVE = (Phase, TieLine, FlashDiagnostics, FlashResult, SaturationPoint, Properties)
+
+
+def _flash_phase_states(r: FlashResult, model: "Model") -> List["PhaseState"]:
+    from ._core import _phase_state
+
+    return [
+        _phase_state(
+            model,
+            r.temperature,
+            r.pressure,
+            list(p.composition * p.amount),
+            p.molar_volume * p.amount,
+            p.kind,
+        )
+        for p in r.phases
+    ]
+
+
+def _flash_properties(r: FlashResult, model: "Model") -> List[Properties]:
+    return [s.properties() for s in _flash_phase_states(r, model)]
+
+
+def _flash_frame(r: FlashResult) -> "pandas.DataFrame":
+    pd = _pandas()
+    rows = []
+    for p in r.phases:
+        row: Dict[str, Any] = {
+            "kind": p.kind,
+            "amount": p.amount,
+            "fraction": p.fraction,
+            "molar_volume": p.molar_volume,
+            "z": p.z,
+        }
+        for i, x in enumerate(p.composition):
+            row[f"x[{i}]"] = x
+        rows.append(row)
+    return pd.DataFrame(rows)
 
 
 def _same(a: Any, b: Any) -> bool:
@@ -128,187 +179,6 @@ def _same(a: Any, b: Any) -> bool:
 
 # ---------------------------------------------------------------------------------------------
 # Single points
-
-
-@dataclass(frozen=True, eq=False)
-class Phase(_Record):
-    """One phase of a flash result.
-
-    Attributes
-    ----------
-    kind : str
-        ``"vapor"``, ``"liquid"`` or ``"liquid2"`` (the lighter of two liquids). A fluid phase
-        is a liquid when the model calls its volume liquid-like; of two phases the lighter is
-        the vapour unless both are liquid-like.
-    amount : float
-        Amount of the phase, mol.
-    fraction : float
-        Amount of the phase over the total feed amount.
-    composition : numpy.ndarray
-        Mole fractions, one per component.
-    molar_volume : float
-        Molar volume, m3/mol.
-    z : float
-        Compressibility factor pv/(RT).
-    ln_phi : numpy.ndarray
-        Natural logarithms of the fugacity coefficients.
-    """
-
-    kind: str
-    amount: float
-    fraction: float
-    composition: np.ndarray
-    molar_volume: float
-    z: float
-    ln_phi: np.ndarray
-
-    @property
-    def molar_density(self) -> float:
-        """Molar density, mol/m3."""
-        return 1.0 / self.molar_volume
-
-    def fugacities(self, pressure: float) -> np.ndarray:
-        """Fugacities f_i = x_i φ_i p, Pa, at the flash pressure ``pressure`` (Pa)."""
-        return self.composition * np.exp(self.ln_phi) * pressure
-
-
-@dataclass(frozen=True, eq=False)
-class TieLine(_Record):
-    """The extension of the tie line through a single-phase feed (negative flash).
-
-    Attributes
-    ----------
-    beta : float
-        Vapour-side fraction, outside [0, 1] for a single-phase feed.
-    x, y : numpy.ndarray
-        Liquid-side and vapour-side mole fractions.
-    """
-
-    beta: float
-    x: np.ndarray
-    y: np.ndarray
-
-
-@dataclass(frozen=True, eq=False)
-class FlashDiagnostics(_Record):
-    """How a flash reached its answer.
-
-    Attributes
-    ----------
-    stability_iterations, ss_iterations, accelerations, newton_iterations : int
-        Iterations of the feed stability test, of successive substitution, accepted
-        accelerations, and Newton iterations.
-    residual : float
-        Final max_i |ln f_i^V − ln f_i^L| (0 for a single phase; dimensionless).
-    certificate : float or None
-        Minimum tangent-plane distance found by an independent stability test of the result
-        (dimensionless, per RT per mol); ≥ 0 up to round-off for a certified minimum. None
-        when switched off.
-    certificate_iterations : int
-        Iterations of that test.
-    warm_start : bool
-        Whether a warm start from the previous point was used and kept.
-    splits_tried : int
-        Two-phase splits tried.
-    gibbs : float
-        Reduced Gibbs energy of the result, Σ n_i (ln x_i + ln φ_i) per mol of feed,
-        relative to the pure ideal gases at T and p (dimensionless).
-    """
-
-    stability_iterations: int
-    ss_iterations: int
-    accelerations: int
-    newton_iterations: int
-    residual: float
-    certificate: Optional[float]
-    certificate_iterations: int
-    warm_start: bool
-    splits_tried: int
-    gibbs: float
-
-
-@dataclass(frozen=True, eq=False)
-class FlashResult(_Record):
-    """Result of a PT flash.
-
-    Attributes
-    ----------
-    temperature : float
-        Temperature, K.
-    pressure : float
-        Pressure, Pa.
-    feed : numpy.ndarray
-        Feed amounts, mol.
-    phases : tuple of Phase
-        The phases present: vapour first, then liquids by increasing density.
-    tie_line : TieLine or None
-        The tie-line extension of a single-phase feed, when asked for with
-        ``negative_flash=True`` and found.
-    diagnostics : FlashDiagnostics
-        Iterations, residual and stability certificate.
-    """
-
-    temperature: float
-    pressure: float
-    feed: np.ndarray
-    phases: Tuple[Phase, ...]
-    tie_line: Optional[TieLine]
-    diagnostics: FlashDiagnostics
-
-    @property
-    def num_phases(self) -> int:
-        """Number of phases present."""
-        return len(self.phases)
-
-    @property
-    def vapor_fraction(self) -> float:
-        """Vapour amount over feed amount (0 when there is no vapour)."""
-        return float(sum(p.fraction for p in self.phases if p.kind == "vapor"))
-
-    def phase(self, kind: str) -> Optional[Phase]:
-        """The first phase of ``kind`` (``"vapor"``, ``"liquid"``, ``"liquid2"``), or None."""
-        for p in self.phases:
-            if p.kind == kind:
-                return p
-        return None
-
-    def phase_states(self, model: "Model") -> List["PhaseState"]:
-        """The phases as :class:`PhaseState` objects of ``model`` (the model that was flashed)."""
-        from ._core import _phase_state
-
-        return [
-            _phase_state(
-                model,
-                self.temperature,
-                self.pressure,
-                list(p.composition * p.amount),
-                p.molar_volume * p.amount,
-                p.kind,
-            )
-            for p in self.phases
-        ]
-
-    def properties(self, model: "Model") -> List["Properties"]:
-        """Thermodynamic properties of each phase (see :class:`Properties`), SI units."""
-        return [s.properties() for s in self.phase_states(model)]
-
-    def to_dataframe(self) -> "pandas.DataFrame":
-        """One row per phase: kind, amount (mol), fraction, molar volume (m3/mol), Z and the
-        mole fractions ``x[i]`` (needs pandas)."""
-        pd = _pandas()
-        rows = []
-        for p in self.phases:
-            row: Dict[str, Any] = {
-                "kind": p.kind,
-                "amount": p.amount,
-                "fraction": p.fraction,
-                "molar_volume": p.molar_volume,
-                "z": p.z,
-            }
-            for i, x in enumerate(p.composition):
-                row[f"x[{i}]"] = x
-            rows.append(row)
-        return pd.DataFrame(rows)
 
 
 @dataclass(frozen=True, eq=False)
@@ -361,39 +231,6 @@ class StabilityResult(_Record):
 
 
 @dataclass(frozen=True, eq=False)
-class SaturationPoint(_Record):
-    """A vapour–liquid saturation state of a pure component.
-
-    Attributes
-    ----------
-    temperature : float
-        Temperature, K.
-    pressure : float
-        Vapour pressure, Pa.
-    liquid_molar_volume, vapor_molar_volume : float
-        Saturated molar volumes, m3/mol.
-    liquid_density, vapor_density : float
-        Saturated molar densities, mol/m3.
-    enthalpy_of_vaporization : float
-        h_V − h_L, J/mol.
-    residual : float
-        Final |ln φ_L − ln φ_V|.
-    iterations : int
-        Iterations used.
-    """
-
-    temperature: float
-    pressure: float
-    liquid_molar_volume: float
-    vapor_molar_volume: float
-    liquid_density: float
-    vapor_density: float
-    enthalpy_of_vaporization: float
-    residual: float
-    iterations: int
-
-
-@dataclass(frozen=True, eq=False)
 class BubbleDewPoint(_Record):
     """A bubble or dew point of a mixture.
 
@@ -431,68 +268,6 @@ class BubbleDewPoint(_Record):
     residual: float
     ss_iterations: int
     newton_iterations: int
-
-
-@dataclass(frozen=True, eq=False)
-class Properties(_Record):
-    """Thermodynamic properties of one phase (molar quantities per mol of phase, SI units).
-
-    Energies are absolute, referred to the ideal gases at 298.15 K and 1e5 Pa with h equal to
-    the enthalpy of formation and g to the Gibbs energy of formation.
-
-    Attributes
-    ----------
-    kind : str
-        ``"vapor"`` or ``"liquid"``.
-    temperature, pressure : float
-        K, Pa.
-    composition : numpy.ndarray
-        Mole fractions.
-    molar_volume, molar_density, mass_density, molar_mass : float
-        m3/mol, mol/m3, kg/m3, kg/mol.
-    z : float
-        Compressibility factor.
-    ln_phi, fugacity : numpy.ndarray
-        ln φ_i and fugacities f_i = x_i φ_i p (Pa).
-    enthalpy, entropy, gibbs, internal_energy, helmholtz : float
-        J/mol, J/(mol K), J/mol, J/mol, J/mol.
-    cp, cv : float
-        Isobaric and isochoric heat capacities, J/(mol K).
-    speed_of_sound : float
-        m/s.
-    joule_thomson : float
-        (∂T/∂p)_h, K/Pa.
-    isothermal_compressibility, thermal_expansion : float
-        1/Pa, 1/K.
-    residual_enthalpy, residual_entropy, residual_gibbs : float
-        Departures from the ideal gas at the same T and p: J/mol, J/(mol K), J/mol.
-    """
-
-    kind: str
-    temperature: float
-    pressure: float
-    composition: np.ndarray
-    molar_volume: float
-    molar_density: float
-    mass_density: float
-    molar_mass: float
-    z: float
-    ln_phi: np.ndarray
-    fugacity: np.ndarray
-    enthalpy: float
-    entropy: float
-    gibbs: float
-    internal_energy: float
-    helmholtz: float
-    cp: float
-    cv: float
-    speed_of_sound: float
-    joule_thomson: float
-    isothermal_compressibility: float
-    thermal_expansion: float
-    residual_enthalpy: float
-    residual_entropy: float
-    residual_gibbs: float
 
 
 # ---------------------------------------------------------------------------------------------

@@ -2,7 +2,8 @@
 //! the worked examples in tests/vectors/solution.json (each case names its source): bubble and
 //! dew points of Smith, Van Ness & Abbott, 7th ed., Examples 10.1 (Raoult's law) and 10.3
 //! (modified Raoult's law with Margules), the azeotrope of Example 10.3(e), the PT flash at
-//! the ends of its two-phase range, and the typed error of a property that needs a Helmholtz
+//! the ends of its two-phase range, the ethanol–water azeotrope at 1 atm by UNIFAC against
+//! experiment (Evans 1916), and the typed error of a property that needs a Helmholtz
 //! energy.
 
 use serde::Deserialize;
@@ -194,4 +195,46 @@ fn pt_flash_agrees_with_bubble_and_dew_points() {
     assert_eq!(e.kind(), ErrorKind::InvalidInput);
     assert!(e.to_string().contains("Helmholtz"), "{e}");
     assert_eq!(m.num_components(), 2);
+}
+
+#[derive(Deserialize)]
+struct AzeoP {
+    id: String,
+    source: String,
+    model: String,
+    pressure: f64,
+    expected_temperature: f64,
+    expected_x1: f64,
+    tolerance_temperature: f64,
+    tolerance_x1: f64,
+}
+
+#[derive(Deserialize)]
+struct VectorsP {
+    models: BTreeMap<String, Value>,
+    azeotropes_at_pressure: Vec<AzeoP>,
+}
+
+#[test]
+fn ethanol_water_azeotrope_at_one_atmosphere() {
+    let v: VectorsP = load_vectors("solution.json");
+    for c in &v.azeotropes_at_pressure {
+        let m = model_from_json(&v.models[&c.model].to_string(), DataBank::embedded()).unwrap();
+        let a = azeotrope_at_pressure(&m, c.pressure, None, &AzeotropeOptions::default())
+            .unwrap_or_else(|e| panic!("{} ({}): {e}", c.id, c.source));
+        assert!(
+            (a.temperature - c.expected_temperature).abs() <= c.tolerance_temperature,
+            "{} ({}): T = {} K",
+            c.id,
+            c.source,
+            a.temperature
+        );
+        assert!(
+            (a.composition[0] - c.expected_x1).abs() <= c.tolerance_x1,
+            "{} ({}): x1 = {}",
+            c.id,
+            c.source,
+            a.composition[0]
+        );
+    }
 }

@@ -215,8 +215,7 @@ impl ModelDescription {
                         ));
                     }
                 }
-                let act: super::activity::ActivityModel = serde_json::from_value(liquid)
-                    .map_err(|e| Error::Data(format!("model description: liquid: {e}")))?;
+                let act = liquid_from_description(liquid, &comps)?;
                 let mut m = super::SolutionModel::new(comps.clone(), act)?
                     .with_poynting(*poynting)
                     .with_extrapolated_vapor_pressures(*extrapolate_vapor_pressures);
@@ -239,6 +238,51 @@ impl ModelDescription {
             }
         }
     }
+}
+
+/// The liquid of a solution description: `{"kind": "nrtl" | "wilson" | "uniquac",
+/// "parameters": "bank"}` takes the binary pairs of the embedded table
+/// ([`super::activity::ActivityPairs::embedded`]; a missing pair is an error), `{"kind":
+/// "unifac"}` without groups takes the molecules' groups from the embedded UNIFAC table, and
+/// anything else is read as [`super::activity::ActivityModel`].
+fn liquid_from_description(
+    liquid: serde_json::Value,
+    comps: &[crate::substance::Component],
+) -> Result<super::activity::ActivityModel> {
+    use super::activity::{ActivityPairs, MissingPairs, Nrtl, Unifac, Uniquac, Wilson};
+    let names: Vec<&str> = comps.iter().map(|c| c.name.as_str()).collect();
+    let obj = liquid
+        .as_object()
+        .ok_or_else(|| Error::invalid("liquid", "an object is required"))?;
+    let kind = obj.get("kind").and_then(|k| k.as_str()).unwrap_or("");
+    let from_bank = obj.get("parameters").and_then(|p| p.as_str()) == Some("bank");
+    if from_bank {
+        if obj
+            .keys()
+            .any(|k| !matches!(k.as_str(), "kind" | "parameters" | "components"))
+        {
+            return Err(Error::invalid(
+                "liquid",
+                "with \"parameters\": \"bank\" only \"kind\" may be given",
+            ));
+        }
+        let t = ActivityPairs::embedded();
+        return Ok(match kind {
+            "nrtl" => Nrtl::from_pairs(&names, t, MissingPairs::Refuse)?.into(),
+            "wilson" => Wilson::from_pairs(&names, t, MissingPairs::Refuse, None)?.into(),
+            "uniquac" => Uniquac::from_pairs(&names, t, MissingPairs::Refuse, None)?.into(),
+            k => {
+                return Err(Error::invalid(
+                    "liquid",
+                    format!("kind '{k}' with \"parameters\": \"bank\"; nrtl, wilson or uniquac is required"),
+                ));
+            }
+        });
+    }
+    if kind == "unifac" && obj.keys().all(|k| matches!(k.as_str(), "kind" | "components")) {
+        return Ok(Unifac::from_names(&names)?.into());
+    }
+    serde_json::from_value(liquid).map_err(|e| Error::Data(format!("model description: liquid: {e}")))
 }
 
 /// Builds a model from a JSON text that is either a description ([`ModelDescription`],

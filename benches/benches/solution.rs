@@ -1,0 +1,90 @@
+//! γ–φ flash benchmark: a warm two-phase PT flash (a [`FlashContext`] alternating T ± 0.5 K at
+//! the middle of the two-phase range) of acetone/methanol/ethanol/water (equimolar) at
+//! 101325 Pa with a UNIFAC liquid and an ideal-gas vapour, against one liquid ln φ evaluation
+//! with composition derivatives in the same run (target: warm flash ≤ 20 µs; common practice,
+//! no source).
+
+use criterion::{Criterion, criterion_group, criterion_main};
+use std::hint::black_box;
+use std::time::{Duration, Instant};
+use tieline::equilibrium::{FlashContext, SaturationOptions, bubble_temperature, dew_temperature};
+use tieline::model::activity::Unifac;
+use tieline::model::{FluidModel, FugacityWork, LnPhi, Need, RootChoice, SolutionModel};
+use tieline::substance::DataBank;
+use tieline_benches::no_certificate;
+
+const NAMES: [&str; 4] = ["acetone", "methanol", "ethanol", "water"];
+const FEED: [f64; 4] = [0.25; 4];
+const P: f64 = 101_325.0;
+
+fn median_ns(f: &mut dyn FnMut(), reps: usize) -> f64 {
+    let mut samples = Vec::with_capacity(31);
+    for _ in 0..31 {
+        let t0 = Instant::now();
+        for _ in 0..reps {
+            f();
+        }
+        samples.push(t0.elapsed().as_nanos() as f64 / reps as f64);
+    }
+    samples.sort_by(|a, b| a.total_cmp(b));
+    samples[15]
+}
+
+fn benches(c: &mut Criterion) {
+    let comps = DataBank::embedded().get_many(&NAMES).expect("bank components");
+    let m = SolutionModel::new(comps, Unifac::from_names(&NAMES).expect("UNIFAC groups").into())
+        .expect("the model builds")
+        .with_extrapolated_vapor_pressures(true);
+    let so = SaturationOptions::default();
+    let tb = bubble_temperature(&m, P, &FEED, &so).expect("bubble point").temperature;
+    let td = dew_temperature(&m, P, &FEED, &so).expect("dew point").temperature;
+    let t2 = 0.5 * (tb + td);
+    let opts = no_certificate();
+    let mut ctx = FlashContext::new(4);
+    let mut k = 0usize;
+    let mut g = c.benchmark_group("unifac4_gamma_phi");
+    g.measurement_time(Duration::from_secs(3))
+        .warm_up_time(Duration::from_millis(500));
+    g.bench_function("warm_pt", |b| {
+        b.iter(|| {
+            k += 1;
+            let t = t2 + if k.is_multiple_of(2) { 0.5 } else { -0.5 };
+            ctx.flash(&m, t, black_box(P), &FEED, &opts).unwrap().phases.len()
+        })
+    });
+    g.finish();
+
+    let mut warm = || {
+        k += 1;
+        let t = t2 + if k.is_multiple_of(2) { 0.5 } else { -0.5 };
+        let r = ctx.flash(&m, t, P, &FEED, &opts).unwrap();
+        assert_eq!(r.phases.len(), 2);
+        black_box(r.phases.len());
+    };
+    let warm_ns = median_ns(&mut warm, 200);
+    let mut w = FugacityWork::new(4);
+    let mut out = LnPhi::new(4);
+    let mut lnphi = || {
+        m.phase_ln_phi(
+            t2,
+            P,
+            black_box(&FEED),
+            RootChoice::Liquid,
+            Need::COMPOSITION,
+            &mut w,
+            &mut out,
+        )
+        .unwrap();
+    };
+    let lnphi_ns = median_ns(&mut lnphi, 2000);
+    println!("\n== γ–φ PT flash (UNIFAC, 4 components, two-phase at {t2:.2} K, 101325 Pa, same run) ==");
+    println!("liquid ln φ with ∂/∂n:            {:>10.0} ns   1.0", lnphi_ns);
+    println!(
+        "warm PT flash (T ± 0.5 K):        {:>10.0} ns   {:.1}  (target ≤ 20000 ns)",
+        warm_ns,
+        warm_ns / lnphi_ns
+    );
+}
+
+criterion_group!(group, benches);
+criterion_main!(group);

@@ -5,6 +5,43 @@ use crate::error::{Error, Result};
 use crate::model::Need;
 use serde::{Deserialize, Serialize};
 
+/// Σ_j a_j b_j with four partial sums (so that the compiler can vectorise it).
+#[inline]
+fn dot(a: &[f64], b: &[f64]) -> f64 {
+    let mut acc = [0.0f64; 4];
+    let mut ca = a.chunks_exact(4);
+    let mut cb = b.chunks_exact(4);
+    for (x, y) in (&mut ca).zip(&mut cb) {
+        for k in 0..4 {
+            acc[k] += x[k] * y[k];
+        }
+    }
+    let mut tail = 0.0;
+    for (x, y) in ca.remainder().iter().zip(cb.remainder()) {
+        tail += x * y;
+    }
+    (acc[0] + acc[1]) + (acc[2] + acc[3]) + tail
+}
+
+/// A process-unique identity of a model's parameter set: the key of the per-temperature
+/// terms cached in the caller's [`ExcessDerivs`] scratch. Models have no setters, so a
+/// parameter set never changes under its identity; clones share it. Ignored by `==`.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct ParamId(pub(crate) u64);
+
+impl ParamId {
+    pub(crate) fn fresh() -> Self {
+        static NEXT: std::sync::atomic::AtomicU64 = std::sync::atomic::AtomicU64::new(1);
+        ParamId(NEXT.fetch_add(1, std::sync::atomic::Ordering::Relaxed))
+    }
+}
+
+impl PartialEq for ParamId {
+    fn eq(&self, _: &Self) -> bool {
+        true
+    }
+}
+
 /// Celsius offset of the temperature form of the non-randomness α_ij, 273.15 K.
 const ALPHA_T_REF: f64 = 273.15;
 
@@ -84,6 +121,7 @@ pub struct Nrtl {
     e: Vec<f64>,
     f: Vec<f64>,
     t_range: (f64, f64),
+    id: ParamId,
 }
 
 impl Nrtl {
@@ -103,6 +141,7 @@ impl Nrtl {
             f: square("NRTL f", &p.f, nc, true)?,
             t_range: (p.t_min, p.t_max),
             names: p.components,
+            id: ParamId::fresh(),
         })
     }
 
@@ -186,51 +225,70 @@ impl ExcessGibbs for Nrtl {
             scratch: store,
             ..
         } = out;
-        let s = scratch(store, 5 * nn + 7 * nc);
+        // Layout: a 3-value key of the cached temperature terms (model identity, T, whether
+        // the T-derivatives are included), τ, G, ∂τ/∂T, ∂G/∂T, then per-call storage.
+        let s = scratch(store, 3 + 7 * nn + 7 * nc);
+        let (key, s) = s.split_at_mut(3);
         let (tau, s) = s.split_at_mut(nn);
         let (g, s) = s.split_at_mut(nn);
         let (dtau, s) = s.split_at_mut(nn);
         let (dg, s) = s.split_at_mut(nn);
         let (m, s) = s.split_at_mut(nn);
+        let (pg, s) = s.split_at_mut(nn);
+        let (pm, s) = s.split_at_mut(nn);
         let (x, s) = s.split_at_mut(nc);
         let (sum_g, s) = s.split_at_mut(nc);
         let (eps, s) = s.split_at_mut(nc);
         let (dsum_g, s) = s.split_at_mut(nc);
-        let (deps, _) = s.split_at_mut(nc);
+        let (deps, s) = s.split_at_mut(nc);
+        let (inv_s, _) = s.split_at_mut(nc);
 
-        // τ_ij, G_ij and their temperature derivatives.
-        let ln_t = t.ln();
-        let dtc = t - ALPHA_T_REF;
-        for k in 0..nn {
-            let tk = self.a[k] + self.b[k] / t + self.e[k] * ln_t + self.f[k] * t;
-            let al = self.c[k] + self.d[k] * dtc;
-            tau[k] = tk;
-            g[k] = (-al * tk).exp();
-            if need.temperature {
-                dtau[k] = -self.b[k] / (t * t) + self.e[k] / t + self.f[k];
-                dg[k] = -(self.d[k] * tk + al * dtau[k]) * g[k];
+        // τ_ij, G_ij and their temperature derivatives, reused while T and the model are those
+        // of the previous call with this storage.
+        let id = f64::from_bits(self.id.0);
+        let cached =
+            key[0].to_bits() == id.to_bits() && key[1].to_bits() == t.to_bits() && (key[2] == 1.0 || !need.temperature);
+        if !cached {
+            let ln_t = t.ln();
+            let dtc = t - ALPHA_T_REF;
+            for k in 0..nn {
+                let tk = self.a[k] + self.b[k] / t + self.e[k] * ln_t + self.f[k] * t;
+                let al = self.c[k] + self.d[k] * dtc;
+                tau[k] = tk;
+                g[k] = (-al * tk).exp();
+                if need.temperature {
+                    dtau[k] = -self.b[k] / (t * t) + self.e[k] / t + self.f[k];
+                    dg[k] = -(self.d[k] * tk + al * dtau[k]) * g[k];
+                }
             }
+            key[0] = id;
+            key[1] = t;
+            key[2] = if need.temperature { 1.0 } else { 0.0 };
         }
         for i in 0..nc {
             x[i] = n[i] / total;
         }
         // S_i = Σ_k x_k G_ki, ε_i = Σ_k x_k τ_ki G_ki / S_i, M_ki = G_ki (τ_ki − ε_i)/S_i.
+        sum_g.iter_mut().for_each(|v| *v = 0.0);
+        eps.iter_mut().for_each(|v| *v = 0.0);
+        for k in 0..nc {
+            let xk = x[k];
+            let (gk, tk) = (&g[k * nc..(k + 1) * nc], &tau[k * nc..(k + 1) * nc]);
+            for i in 0..nc {
+                sum_g[i] += xk * gk[i];
+                eps[i] += xk * tk[i] * gk[i];
+            }
+        }
         let mut ge = 0.0;
         for i in 0..nc {
-            let (mut sg, mut stg) = (0.0, 0.0);
-            for k in 0..nc {
-                let gk = g[k * nc + i];
-                sg += x[k] * gk;
-                stg += x[k] * tau[k * nc + i] * gk;
-            }
-            sum_g[i] = sg;
-            eps[i] = stg / sg;
+            inv_s[i] = 1.0 / sum_g[i];
+            eps[i] *= inv_s[i];
             ge += x[i] * eps[i];
         }
         for k in 0..nc {
             for i in 0..nc {
                 let idx = k * nc + i;
-                m[idx] = g[idx] * (tau[idx] - eps[i]) / sum_g[i];
+                m[idx] = g[idx] * (tau[idx] - eps[i]) * inv_s[i];
             }
         }
         *g_excess = ge;
@@ -244,14 +302,22 @@ impl ExcessGibbs for Nrtl {
         }
         if need.composition {
             // ln γ_i is homogeneous of degree 0 in x, so ∂ln γ_i/∂n_k = (∂ln γ_i/∂x_k)/n_T with
-            // ∂ln γ_i/∂x_k = M_ki + M_ik − Σ_j x_j (G_ij M_kj + G_kj M_ij)/S_j (symmetric).
+            // ∂ln γ_i/∂x_k = M_ki + M_ik − Σ_j x_j (G_ij M_kj + G_kj M_ij)/S_j (symmetric),
+            // written as row dot products with P_ij = x_j G_ij/S_j and Q_ij = x_j M_ij/S_j.
             for i in 0..nc {
+                for j in 0..nc {
+                    let w = x[j] * inv_s[j];
+                    pg[i * nc + j] = w * g[i * nc + j];
+                    pm[i * nc + j] = w * m[i * nc + j];
+                }
+            }
+            for i in 0..nc {
+                let (pi, qi) = (&pg[i * nc..(i + 1) * nc], &pm[i * nc..(i + 1) * nc]);
                 for k in i..nc {
-                    let mut v = m[k * nc + i] + m[i * nc + k];
-                    for j in 0..nc {
-                        v -= x[j] * (g[i * nc + j] * m[k * nc + j] + g[k * nc + j] * m[i * nc + j]) / sum_g[j];
-                    }
-                    v /= total;
+                    let v = m[k * nc + i] + m[i * nc + k]
+                        - dot(pi, &m[k * nc..(k + 1) * nc])
+                        - dot(qi, &g[k * nc..(k + 1) * nc]);
+                    let v = v / total;
                     dn[i * nc + k] = v;
                     dn[k * nc + i] = v;
                 }
@@ -267,7 +333,7 @@ impl ExcessGibbs for Nrtl {
                     dc += x[k] * (dtau[idx] * g[idx] + tau[idx] * dg[idx]);
                 }
                 dsum_g[i] = ds;
-                deps[i] = (dc - eps[i] * ds) / sum_g[i];
+                deps[i] = (dc - eps[i] * ds) * inv_s[i];
                 dge += x[i] * deps[i];
             }
             for i in 0..nc {
@@ -311,6 +377,38 @@ mod tests {
         check_model(&m, 330.0, &[0.2, 0.5, 0.3]);
         check_model(&m, 280.0, &[2.0, 0.1, 0.7]);
         check_model(&m, 400.0, &[0.0, 1.0, 3.0]);
+    }
+
+    #[test]
+    fn nrtl_cached_temperature_terms_are_never_stale() {
+        let m = ternary();
+        let other = Nrtl::new(NrtlParams {
+            b: vec![],
+            ..m.params()
+        })
+        .unwrap();
+        let n = [0.2, 0.5, 0.3];
+        let fresh = |model: &Nrtl, t: f64| {
+            let mut o = ExcessDerivs::new(3);
+            model.excess(t, &n, Need::ALL, &mut o).unwrap();
+            o
+        };
+        let mut shared = ExcessDerivs::new(3);
+        for (model, t, need) in [
+            (&m, 300.0, Need::VALUES),
+            (&m, 300.0, Need::ALL),
+            (&other, 300.0, Need::ALL),
+            (&m, 310.0, Need::ALL),
+            (&m, 300.0, Need::ALL),
+        ] {
+            model.excess(t, &n, need, &mut shared).unwrap();
+            let f = fresh(model, t);
+            assert_eq!(shared.ln_gamma, f.ln_gamma);
+            if need.temperature {
+                assert_eq!(shared.dt, f.dt);
+                assert_eq!(shared.dn, f.dn);
+            }
+        }
     }
 
     #[test]

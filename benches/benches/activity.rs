@@ -1,0 +1,71 @@
+//! Liquid-solution model benchmarks: one evaluation of ln γ with composition and temperature
+//! derivatives (and h^E, s^E) for NRTL with 10 components, and UNIFAC with 5 components, both
+//! warm (storage reused, no allocation); values only for comparison.
+
+use criterion::{Criterion, criterion_group, criterion_main};
+use std::hint::black_box;
+use tieline::model::activity::{Nrtl, NrtlParams, Unifac};
+use tieline::model::{ExcessDerivs, ExcessGibbs, Need};
+
+/// A 10-component NRTL model with invented (demonstration) parameters that use every
+/// temperature term.
+fn nrtl10() -> Nrtl {
+    let nc = 10;
+    let m = |f: &dyn Fn(usize, usize) -> f64| -> Vec<Vec<f64>> {
+        (0..nc)
+            .map(|i| (0..nc).map(|j| if i == j { 0.0 } else { f(i, j) }).collect())
+            .collect()
+    };
+    Nrtl::new(NrtlParams {
+        components: (0..nc).map(|i| format!("c{i}")).collect(),
+        a: m(&|i, j| 0.1 * ((i * 7 + j * 3) % 5) as f64 - 0.2),
+        b: m(&|i, j| 50.0 * ((i * 3 + j * 5) % 9) as f64 - 100.0),
+        c: m(&|i, j| 0.2 + 0.02 * ((i + j) % 5) as f64),
+        d: m(&|_, _| 1e-4),
+        e: m(&|i, j| 0.01 * ((i + 2 * j) % 3) as f64),
+        f: m(&|i, j| 1e-5 * ((2 * i + j) % 4) as f64),
+        t_min: 250.0,
+        t_max: 450.0,
+    })
+    .unwrap()
+}
+
+fn benches(c: &mut Criterion) {
+    let mut g = c.benchmark_group("activity");
+    let nrtl = nrtl10();
+    let n: Vec<f64> = (0..10).map(|i| 0.05 + 0.01 * i as f64).collect();
+    let mut out = ExcessDerivs::new(10);
+    g.bench_function("nrtl10_all_derivatives", |b| {
+        b.iter(|| {
+            nrtl.excess(black_box(330.0), black_box(&n), Need::ALL, &mut out)
+                .unwrap()
+        })
+    });
+    g.bench_function("nrtl10_values", |b| {
+        b.iter(|| {
+            nrtl.excess(black_box(330.0), black_box(&n), Need::VALUES, &mut out)
+                .unwrap()
+        })
+    });
+    let unifac = Unifac::from_names(&["water", "ethanol", "acetone", "toluene", "n-hexane"]).unwrap();
+    let n5 = [0.3, 0.2, 0.2, 0.1, 0.2];
+    let mut out5 = ExcessDerivs::new(5);
+    g.bench_function("unifac5_all_derivatives", |b| {
+        b.iter(|| {
+            unifac
+                .excess(black_box(330.0), black_box(&n5), Need::ALL, &mut out5)
+                .unwrap()
+        })
+    });
+    g.bench_function("unifac5_values", |b| {
+        b.iter(|| {
+            unifac
+                .excess(black_box(330.0), black_box(&n5), Need::VALUES, &mut out5)
+                .unwrap()
+        })
+    });
+    g.finish();
+}
+
+criterion_group!(group, benches);
+criterion_main!(group);

@@ -18,6 +18,7 @@ NOTEBOOKS = {
     "water_phases_gibbs.ipynb": ["water_phases_gibbs.png"],
     "envelope_and_valve.ipynb": ["envelope_and_valve.png"],
     "reaction_equilibrium.ipynb": ["reaction_equilibrium.png"],
+    "liquid_solutions.ipynb": ["liquid_solutions.png"],
 }
 
 

@@ -282,12 +282,15 @@ fn vectors_water_hydrocarbon_three_phase() {
     }
 }
 
-/// Newton polishing: the answer's residual is far below the tolerance asked for, and a
-/// tighter tolerance is reached with few extra Newton iterations (quadratic convergence).
+/// Newton polishing: the answer's residual meets the tolerance asked for, and tightening the
+/// tolerance from 1e-6 to 1e-12 costs at most a few more Newton iterations per phase set
+/// solved on the way (quadratic convergence: each step squares the residual; successive
+/// substitution would need tens more).
 #[test]
 fn newton_polishes_to_the_tolerance() {
     let m = water_hc(&["methane", "n-hexane", "water"]);
     let z = [0.3, 0.2, 0.5];
+    let mut counts = Vec::new();
     for tol in [1e-6, 1e-10, 1e-12] {
         let opts = MultiphaseOptions {
             tolerance: tol,
@@ -297,8 +300,9 @@ fn newton_polishes_to_the_tolerance() {
         assert_eq!(r.phases.len(), 3);
         let res = fugacity_residual(&ln_fugacities(&m, &r, false));
         assert!(res <= tol, "tolerance {tol:e}: residual {res:e}");
-        assert!(r.diagnostics.newton_iterations <= 12, "{:?}", r.diagnostics);
+        counts.push(r.diagnostics.newton_iterations);
     }
+    assert!(counts[2] <= counts[0] + 8, "Newton iterations {counts:?}");
 }
 
 /// METHODS §12 B1 (CH4/H2S with SRK, k12 = 0.08, 190 K, 40.53 bar; Michelsen 1982a, "The

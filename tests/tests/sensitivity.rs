@@ -92,10 +92,12 @@ fn options(c: &Case, s: &Steps) -> FlashOptions {
     }
 }
 
-/// A finite-difference derivative with the sum of the two flashes' final residuals.
+/// A finite-difference derivative with the sum of the two flashes' final residuals and the
+/// largest |ln φ| of their phases.
 struct Fd {
     d: Derivative,
     residuals: f64,
+    ln_phi_max: f64,
 }
 
 /// Central difference (f(x + h) − f(x − h)) / 2h of every quantity.
@@ -110,6 +112,12 @@ fn central(m: &Model, c: &Case, o: &FlashOptions, plus: (f64, f64, &[f64]), minu
     let (sp, sm) = (state(m, &rp), state(m, &rm));
     let d = |a: f64, b: f64| (a - b) / (2.0 * h);
     let residuals = rp.diagnostics.residual + rm.diagnostics.residual;
+    let ln_phi_max = rp
+        .phases
+        .iter()
+        .chain(&rm.phases)
+        .flat_map(|ph| ph.ln_phi.iter())
+        .fold(0.0f64, |s, v| s.max(v.abs()));
     let d = Derivative {
         phase_amounts: sp.amounts.iter().zip(&sm.amounts).map(|(a, b)| d(*a, *b)).collect(),
         compositions: sp
@@ -122,12 +130,18 @@ fn central(m: &Model, c: &Case, o: &FlashOptions, plus: (f64, f64, &[f64]), minu
         enthalpy: d(sp.enthalpy, sm.enthalpy),
         entropy: d(sp.entropy, sm.entropy),
     };
-    Fd { d, residuals }
+    Fd {
+        d,
+        residuals,
+        ln_phi_max,
+    }
 }
 
 /// Compares every entry: |a − fd| ≤ tol·scale + floor (scales as stated in
-/// sensitivity.json), where floor = (4ε + r₊ + r₋)|X|/(2h) is the resolution of a central
-/// difference of a quantity of size |X| with step h: round-off (ε the machine epsilon) plus
+/// sensitivity.json), where floor = (4ε(1 + L) + 4(r₊ + r₋))|X|/(2h) is the resolution of a
+/// central difference of a quantity of size |X| with step h: round-off (ε the machine epsilon;
+/// the ln φ of each phase carries a round-off of about ε|ln φ|, L the largest |ln φ| of the
+/// two flashes, and a converged split cannot be sharper than that) plus
 /// the two flashes' final equilibrium residuals r± (max |Δ ln f|), taken four times as the
 /// relative error of the amounts they leave: a split converged by Newton to round-off level
 /// has a computed residual below the round-off of its ln φ, and its compositions scatter by
@@ -137,7 +151,7 @@ fn central(m: &Model, c: &Case, o: &FlashOptions, plus: (f64, f64, &[f64]), minu
 /// compositions of three phases of three components, which the phase rule fixes at given T
 /// and p. Returns the worst ratio (|a − fd| − floor)⁺ / scale.
 fn compare(what: &str, a: &Derivative, fd: &Fd, x: &State, h: f64, tol: f64) -> f64 {
-    let res = |v: f64| (4.0 * f64::EPSILON + 4.0 * fd.residuals) * v.abs() / (2.0 * h);
+    let res = |v: f64| (4.0 * f64::EPSILON * (1.0 + fd.ln_phi_max) + 4.0 * fd.residuals) * v.abs() / (2.0 * h);
     let fd = &fd.d;
     let mut worst = 0.0f64;
     let mut check = |name: String, a: f64, b: f64, scale: f64, floor: f64| {

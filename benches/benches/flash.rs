@@ -7,20 +7,7 @@ use std::hint::black_box;
 use std::time::{Duration, Instant};
 use tieline::equilibrium::{FlashContext, FlashOptions, StabilityOptions, flash_batch, stability};
 use tieline::model::{FugacityWork, LnPhi, Need, RootChoice, ln_phi};
-use tieline_benches::{FEED, ONE_PHASE, TWO_PHASE, equilibrium_liquid, model, no_certificate};
-
-fn median_ns(f: &mut dyn FnMut(), reps: usize) -> f64 {
-    let mut samples = Vec::with_capacity(31);
-    for _ in 0..31 {
-        let t0 = Instant::now();
-        for _ in 0..reps {
-            f();
-        }
-        samples.push(t0.elapsed().as_nanos() as f64 / reps as f64);
-    }
-    samples.sort_by(|a, b| a.total_cmp(b));
-    samples[15]
-}
+use tieline_benches::{FEED, ONE_PHASE, TWO_PHASE, equilibrium_liquid, median_ns, model, no_certificate};
 
 fn benches(c: &mut Criterion) {
     let m = model();

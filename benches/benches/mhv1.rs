@@ -14,6 +14,7 @@ use tieline::model::{
     ln_phi,
 };
 use tieline::substance::DataBank;
+use tieline_benches::median_ns;
 
 struct Counting;
 static ALLOCS: AtomicUsize = AtomicUsize::new(0);
@@ -87,19 +88,6 @@ fn models() -> (CubicEos, CubicEos) {
         })
         .unwrap();
     (classic, mhv1)
-}
-
-fn median_ns(f: &mut dyn FnMut(), reps: usize) -> f64 {
-    let mut samples = Vec::with_capacity(31);
-    for _ in 0..31 {
-        let t0 = Instant::now();
-        for _ in 0..reps {
-            f();
-        }
-        samples.push(t0.elapsed().as_nanos() as f64 / reps as f64);
-    }
-    samples.sort_by(|a, b| a.total_cmp(b));
-    samples[15]
 }
 
 fn benches(c: &mut Criterion) {

@@ -8,10 +8,11 @@
 
 use criterion::{Criterion, criterion_group, criterion_main};
 use std::hint::black_box;
-use std::time::{Duration, Instant};
+use std::time::Duration;
 use tieline::equilibrium::{FlashContext, FlashOptions, MultiphaseContext, MultiphaseOptions};
 use tieline::model::{CubicEos, CubicKind, FugacityWork, LnPhi, Need, RootChoice, ln_phi};
 use tieline::substance::DataBank;
+use tieline_benches::median_ns;
 
 const T: f64 = 300.0;
 const P: f64 = 2.0e6;
@@ -28,19 +29,6 @@ fn model() -> CubicEos {
         .unwrap()
         .with_pair(1, 2, 0.5, 0.0)
         .unwrap()
-}
-
-fn median_ns(f: &mut dyn FnMut(), reps: usize) -> f64 {
-    let mut samples = Vec::with_capacity(31);
-    for _ in 0..31 {
-        let t0 = Instant::now();
-        for _ in 0..reps {
-            f();
-        }
-        samples.push(t0.elapsed().as_nanos() as f64 / reps as f64);
-    }
-    samples.sort_by(|a, b| a.total_cmp(b));
-    samples[15]
 }
 
 fn benches(c: &mut Criterion) {

@@ -7,21 +7,8 @@
 
 use std::cell::Cell;
 use std::hint::black_box;
-use std::time::Instant;
 use tieline::numerics::roots::{brent, cubic_real_roots};
-
-fn median_ns(f: &mut dyn FnMut(), reps: usize) -> f64 {
-    let mut samples = Vec::with_capacity(31);
-    for _ in 0..31 {
-        let t0 = Instant::now();
-        for _ in 0..reps {
-            f();
-        }
-        samples.push(t0.elapsed().as_nanos() as f64 / reps as f64);
-    }
-    samples.sort_by(|a, b| a.total_cmp(b));
-    samples[15]
-}
+use tieline_benches::median_ns;
 
 /// Coefficients (a, b, c) of x³ + a x² + b x + c with roots 1, s1, s2.
 fn with_roots(s1: f64, s2: f64) -> (f64, f64, f64) {

@@ -6,29 +6,17 @@
 
 use criterion::{Criterion, criterion_group, criterion_main};
 use std::hint::black_box;
-use std::time::{Duration, Instant};
+use std::time::Duration;
 use tieline::equilibrium::{FlashContext, SaturationOptions, bubble_temperature, dew_temperature};
 use tieline::model::activity::Unifac;
 use tieline::model::{FluidModel, FugacityWork, LnPhi, Need, RootChoice, SolutionModel};
 use tieline::substance::DataBank;
+use tieline_benches::median_ns;
 use tieline_benches::no_certificate;
 
 const NAMES: [&str; 4] = ["acetone", "methanol", "ethanol", "water"];
 const FEED: [f64; 4] = [0.25; 4];
 const P: f64 = 101_325.0;
-
-fn median_ns(f: &mut dyn FnMut(), reps: usize) -> f64 {
-    let mut samples = Vec::with_capacity(31);
-    for _ in 0..31 {
-        let t0 = Instant::now();
-        for _ in 0..reps {
-            f();
-        }
-        samples.push(t0.elapsed().as_nanos() as f64 / reps as f64);
-    }
-    samples.sort_by(|a, b| a.total_cmp(b));
-    samples[15]
-}
 
 fn benches(c: &mut Criterion) {
     let comps = DataBank::embedded().get_many(&NAMES).expect("bank components");

@@ -6,22 +6,9 @@
 
 use criterion::{Criterion, criterion_group, criterion_main};
 use std::hint::black_box;
-use std::time::{Duration, Instant};
+use std::time::Duration;
 use tieline::equilibrium::{FlashContext, StateFlashContext, StateFlashOptions, StateSpec, flash_pt};
-use tieline_benches::{FEED, TWO_PHASE, model, no_certificate};
-
-fn median_ns(f: &mut dyn FnMut(), reps: usize) -> f64 {
-    let mut samples = Vec::with_capacity(31);
-    for _ in 0..31 {
-        let t0 = Instant::now();
-        for _ in 0..reps {
-            f();
-        }
-        samples.push(t0.elapsed().as_nanos() as f64 / reps as f64);
-    }
-    samples.sort_by(|a, b| a.total_cmp(b));
-    samples[15]
-}
+use tieline_benches::{FEED, TWO_PHASE, median_ns, model, no_certificate};
 
 fn benches(c: &mut Criterion) {
     let m = model();

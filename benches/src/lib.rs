@@ -56,3 +56,18 @@ pub fn equilibrium_liquid(m: &CubicEos) -> Vec<f64> {
     let r = tieline::equilibrium::flash_pt(m, t, p, &FEED, &no_certificate()).expect("the benchmark point flashes");
     r.phases[1].composition.clone()
 }
+
+/// Median time of one call of `f`, ns: 31 samples of `reps` calls each, on a plain clock (the
+/// ratios the benches print are medians of this in the same run).
+pub fn median_ns(f: &mut dyn FnMut(), reps: usize) -> f64 {
+    let mut samples = Vec::with_capacity(31);
+    for _ in 0..31 {
+        let t0 = std::time::Instant::now();
+        for _ in 0..reps {
+            f();
+        }
+        samples.push(t0.elapsed().as_nanos() as f64 / reps as f64);
+    }
+    samples.sort_by(|a, b| a.total_cmp(b));
+    samples[15]
+}

@@ -14,6 +14,7 @@
 //! other drivers of the same layout (the C ABI's scoped threads) give identical results.
 
 use super::flash::{FlashContext, FlashOptions, FlashResult};
+use super::nphase::MAX_FLUID_PHASES;
 use crate::error::{Error, Result, check};
 use crate::limits::{MAX_POINTS, MAX_THREADS};
 use crate::model::FluidModel;
@@ -291,5 +292,162 @@ mod tests {
             ..BatchLayout::default()
         };
         assert!(flash_batch_with(&m, &t, &p, &z, &o, 1, &bad).is_err());
+    }
+}
+
+/// The outcome of [`flash_batch_arrays`], as arrays indexed by point first. Phase slots past a
+/// point's phase count, and every slot of a failed point, hold NaN (counts hold 0).
+#[derive(Debug, Clone)]
+pub struct BatchArrays {
+    /// Number of phases of each point (0 for a failed point).
+    pub num_phases: ndarray::Array1<u8>,
+    /// Vapour fraction of each point (0 without vapour; NaN for a failed point).
+    pub vapor_fraction: ndarray::Array1<f64>,
+    /// Phase fractions, shape (points, [`MAX_FLUID_PHASES`]).
+    pub phase_fractions: ndarray::Array2<f64>,
+    /// Molar volumes of the phases, m3/mol, shape (points, [`MAX_FLUID_PHASES`]).
+    pub molar_volumes: ndarray::Array2<f64>,
+    /// Phase compositions (mole fractions), shape (points, [`MAX_FLUID_PHASES`], nc).
+    pub compositions: ndarray::Array3<f64>,
+    /// The error of each failed point (`None` where the point succeeded).
+    pub errors: Vec<Option<Error>>,
+}
+
+/// [`flash_batch`] on `ndarray` views: `t` (K) and `p` (Pa) with one value per point, `feeds`
+/// with one row of `nc` amounts (mol) shared by every point or one row per point. Views in
+/// standard (row-major, contiguous) layout are read in place; any other layout is copied once.
+/// The results come back as arrays ([`BatchArrays`]); one bad point does not spoil the batch.
+///
+/// ```
+/// use ndarray::{Array1, Array2};
+/// use tieline::equilibrium::{FlashOptions, flash_batch_arrays};
+/// use tieline::model::{CubicEos, CubicKind};
+/// use tieline::substance::DataBank;
+///
+/// let bank = DataBank::embedded();
+/// let model = CubicEos::new(CubicKind::PengRobinson, bank.get_many(&["methane", "propane"])?)?;
+/// let t = Array1::linspace(230.0, 260.0, 4);
+/// let p = Array1::from_elem(4, 2.0e6);
+/// let feed = Array2::from_shape_vec((1, 2), vec![0.6, 0.4]).unwrap();
+/// let out = flash_batch_arrays(&model, t.view(), p.view(), feed.view(), &FlashOptions::default(), 1)?;
+/// assert_eq!(out.compositions.dim(), (4, 4, 2));
+/// assert!(out.errors.iter().all(Option::is_none));
+/// # Ok::<(), tieline::Error>(())
+/// ```
+pub fn flash_batch_arrays<M: FluidModel + ?Sized>(
+    model: &M,
+    t: ndarray::ArrayView1<'_, f64>,
+    p: ndarray::ArrayView1<'_, f64>,
+    feeds: ndarray::ArrayView2<'_, f64>,
+    opts: &FlashOptions,
+    threads: usize,
+) -> Result<BatchArrays> {
+    let nc = model.num_components();
+    if feeds.ncols() != nc {
+        return Err(Error::invalid(
+            "feeds",
+            format!("rows of {} amounts; the model has {nc} components", feeds.ncols()),
+        ));
+    }
+    let (t_own, p_own, f_own);
+    let ts = match t.as_slice() {
+        Some(s) => s,
+        None => {
+            t_own = t.to_vec();
+            &t_own[..]
+        }
+    };
+    let ps = match p.as_slice() {
+        Some(s) => s,
+        None => {
+            p_own = p.to_vec();
+            &p_own[..]
+        }
+    };
+    let fs = match feeds.as_slice() {
+        Some(s) => s,
+        None => {
+            f_own = feeds.iter().copied().collect::<Vec<f64>>();
+            &f_own[..]
+        }
+    };
+    let results = flash_batch(model, ts, ps, fs, opts, threads)?;
+    let n = results.len();
+    let mut out = BatchArrays {
+        num_phases: ndarray::Array1::zeros(n),
+        vapor_fraction: ndarray::Array1::from_elem(n, f64::NAN),
+        phase_fractions: ndarray::Array2::from_elem((n, MAX_FLUID_PHASES), f64::NAN),
+        molar_volumes: ndarray::Array2::from_elem((n, MAX_FLUID_PHASES), f64::NAN),
+        compositions: ndarray::Array3::from_elem((n, MAX_FLUID_PHASES, nc), f64::NAN),
+        errors: Vec::with_capacity(n),
+    };
+    for (i, r) in results.into_iter().enumerate() {
+        match r {
+            Ok(r) => {
+                out.num_phases[i] = r.phases.len() as u8;
+                out.vapor_fraction[i] = r.vapor_fraction();
+                for (k, ph) in r.phases.iter().enumerate().take(MAX_FLUID_PHASES) {
+                    out.phase_fractions[[i, k]] = ph.fraction;
+                    out.molar_volumes[[i, k]] = ph.molar_volume;
+                    for (j, x) in ph.composition.iter().enumerate() {
+                        out.compositions[[i, k, j]] = *x;
+                    }
+                }
+                out.errors.push(None);
+            }
+            Err(e) => out.errors.push(Some(e)),
+        }
+    }
+    Ok(out)
+}
+
+#[cfg(test)]
+mod array_tests {
+    use super::*;
+    use crate::model::{CubicEos, CubicKind};
+    use crate::substance::DataBank;
+    use ndarray::{Array1, Array2, s};
+
+    #[test]
+    fn arrays_in_any_layout_give_the_slice_results() {
+        let bank = DataBank::embedded();
+        let m = CubicEos::new(CubicKind::PengRobinson, bank.get_many(&["methane", "propane"]).unwrap()).unwrap();
+        // A strided (non-contiguous) view of temperatures and a transposed feed matrix.
+        let wide = Array1::linspace(200.0, 300.0, 12);
+        let t = wide.slice(s![..;2]);
+        let p = Array1::from_elem(6, 2.0e6);
+        let cols =
+            Array2::from_shape_vec((2, 6), vec![0.6, 0.5, 0.4, 0.3, 0.2, 0.1, 0.4, 0.5, 0.6, 0.7, 0.8, 0.9]).unwrap();
+        let feeds = cols.t();
+        assert!(t.as_slice().is_none() && feeds.as_slice().is_none());
+        let opts = FlashOptions::default();
+        let out = flash_batch_arrays(&m, t, p.view(), feeds, &opts, 1).unwrap();
+        let flat: Vec<f64> = feeds.iter().copied().collect();
+        let reference = flash_batch(&m, &t.to_vec(), p.as_slice().unwrap(), &flat, &opts, 1).unwrap();
+        assert_eq!(out.errors.len(), 6);
+        for (i, r) in reference.iter().enumerate() {
+            let r = r.as_ref().unwrap();
+            assert_eq!(out.num_phases[i] as usize, r.phases.len());
+            assert_eq!(out.vapor_fraction[i].to_bits(), r.vapor_fraction().to_bits());
+            for (k, ph) in r.phases.iter().enumerate() {
+                assert_eq!(out.phase_fractions[[i, k]].to_bits(), ph.fraction.to_bits());
+                for (j, x) in ph.composition.iter().enumerate() {
+                    assert_eq!(out.compositions[[i, k, j]].to_bits(), x.to_bits());
+                }
+            }
+            for k in r.phases.len()..MAX_FLUID_PHASES {
+                assert!(out.phase_fractions[[i, k]].is_nan());
+            }
+        }
+        // A feed of the wrong width is refused.
+        let bad = Array2::from_elem((1, 3), 1.0);
+        assert!(flash_batch_arrays(&m, t, p.view(), bad.view(), &opts, 1).is_err());
+        // A bad point is reported in its slot; the others still run.
+        let tb = Array1::from(vec![250.0, -5.0, 250.0]);
+        let pb = Array1::from_elem(3, 2.0e6);
+        let fb = Array2::from_shape_vec((1, 2), vec![0.5, 0.5]).unwrap();
+        let out = flash_batch_arrays(&m, tb.view(), pb.view(), fb.view(), &opts, 1).unwrap();
+        assert!(out.errors[0].is_none() && out.errors[1].is_some() && out.errors[2].is_none());
+        assert_eq!(out.num_phases[1], 0);
     }
 }

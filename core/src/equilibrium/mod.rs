@@ -22,7 +22,7 @@ pub mod stability;
 pub mod state_flash;
 
 pub use azeotrope::{Azeotrope, AzeotropeOptions, azeotrope_at_pressure, azeotrope_at_temperature};
-pub use batch::flash_batch;
+pub use batch::{BatchArrays, flash_batch, flash_batch_arrays};
 pub use critical::{CriticalOptions, CriticalPoint, critical_point};
 pub use envelope::{EnvelopeOptions, EnvelopePoint, PhaseEnvelope, phase_envelope};
 pub use flash::{Diagnostics, FlashContext, FlashOptions, FlashResult, Phase, TieLine, flash_pt};

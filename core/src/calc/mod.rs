@@ -582,6 +582,28 @@ const fn state_calculation(name: &'static str, summary: &'static str, arguments:
     }
 }
 
+/// An azeotrope at given pressure or temperature (by `name`): [`AzeotropeOptions`], solved by
+/// [`azeotrope`].
+const fn azeotrope_calculation(
+    name: &'static str,
+    summary: &'static str,
+    arguments: &'static [Argument],
+) -> Calculation {
+    Calculation {
+        name,
+        summary,
+        arguments,
+        feed_extension: None,
+        defaults: defaults_of::<AzeotropeOptions>,
+        parse: |v| {
+            let o: AzeotropeOptions = parse_as(v)?;
+            o.validate()?;
+            Ok(Options::Azeotrope(o))
+        },
+        run: azeotrope,
+    }
+}
+
 /// A reaction equilibrium (TP, HP, SP): [`ReactionCalcOptions`], solved by [`reaction`].
 const fn reaction_calculation(
     name: &'static str,
@@ -747,36 +769,18 @@ pub static CALCULATIONS: &[Calculation] = &[
             Ok(rec)
         },
     },
-    Calculation {
-        name: "azeotrope_at_pressure",
-        summary: "the azeotrope of a binary at given pressure (x = y with equal fugacities, Newton); \
-                  the search starts at the feed's composition and falls back to a scan of x1",
-        arguments: &[P_ARG],
-        feed_extension: None,
-        defaults: defaults_of::<AzeotropeOptions>,
-        parse: |v| {
-            let o: AzeotropeOptions = parse_as(v)?;
-            o.validate()?;
-            Ok(Options::Azeotrope(o))
-        },
-        run: |name, o, _ws, m, a, feed| azeotrope_calc(name, o, m, feed, |g, o| azeotrope_at_pressure(m, a[0], g, o)),
-    },
-    Calculation {
-        name: "azeotrope_at_temperature",
-        summary: "the azeotrope of a binary at given temperature (x = y with equal fugacities, Newton); \
-                  the search starts at the feed's composition and falls back to a scan of x1",
-        arguments: &[T_ARG],
-        feed_extension: None,
-        defaults: defaults_of::<AzeotropeOptions>,
-        parse: |v| {
-            let o: AzeotropeOptions = parse_as(v)?;
-            o.validate()?;
-            Ok(Options::Azeotrope(o))
-        },
-        run: |name, o, _ws, m, a, feed| {
-            azeotrope_calc(name, o, m, feed, |g, o| azeotrope_at_temperature(m, a[0], g, o))
-        },
-    },
+    azeotrope_calculation(
+        "azeotrope_at_pressure",
+        "the azeotrope of a binary at given pressure (x = y with equal fugacities, Newton); \
+         the search starts at the feed's composition and falls back to a scan of x1",
+        &[P_ARG],
+    ),
+    azeotrope_calculation(
+        "azeotrope_at_temperature",
+        "the azeotrope of a binary at given temperature (x = y with equal fugacities, Newton); \
+         the search starts at the feed's composition and falls back to a scan of x1",
+        &[T_ARG],
+    ),
     Calculation {
         name: "activity_coefficients",
         summary: "activity coefficients and excess properties of a liquid of the model's \
@@ -858,15 +862,23 @@ pub static CALCULATIONS: &[Calculation] = &[
 
 /// An azeotrope from the feed's composition as the first estimate, then from a scan of x1 if
 /// that start does not converge; the record of its fields.
-fn azeotrope_calc(
+fn azeotrope(
     name: &'static str,
     o: &Options,
+    _ws: &mut Workspace,
     m: &Model,
+    a: &[f64],
     feed: &[f64],
-    solve: impl Fn(Option<f64>, &AzeotropeOptions) -> Result<Azeotrope>,
 ) -> Result<Record> {
     let Options::Azeotrope(o) = o else {
         return Err(wrong_options("azeotrope"));
+    };
+    let solve = |g: Option<f64>, o: &AzeotropeOptions| -> Result<Azeotrope> {
+        if name == "azeotrope_at_pressure" {
+            azeotrope_at_pressure(m, a[0], g, o)
+        } else {
+            azeotrope_at_temperature(m, a[0], g, o)
+        }
     };
     if m.num_components() != 2 {
         return Err(Error::invalid(

@@ -1216,6 +1216,18 @@ mod tests {
         }
     }
 
+    // n-decane compressed to 1e12 Pa: ln φ ≈ p·b/(RT) is about 8e4, finite, while φ·x·p
+    // overflows; the fugacity is an error, never inf.
+    #[test]
+    fn an_overflowing_fugacity_is_no_solution() {
+        let bank = DataBank::embedded();
+        let m = CubicEos::new(CubicKind::PengRobinson, bank.get_many(&["n-decane"]).unwrap()).unwrap();
+        let st = crate::model::PhaseState::new(&m, 300.0, 1.0e12, &[1.0], crate::model::RootChoice::Stable).unwrap();
+        let e = st.properties(&m).unwrap_err();
+        assert_eq!(e.kind(), crate::error::ErrorKind::NoSolution, "{e}");
+        assert!(e.to_string().contains("fugacity of component 0"), "{e}");
+    }
+
     #[test]
     fn a_plan_runs_the_same_flash_as_the_solver() {
         let m = model();

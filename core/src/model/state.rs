@@ -276,6 +276,16 @@ impl PhaseState {
                 p = num(p)
             )));
         }
+        // ln φ can be finite while φ·x·p is not (ln φ above about 700 - ln p).
+        if let Some(i) = props.fugacity.iter().position(|v| !v.is_finite()) {
+            return Err(Error::NoSolution(format!(
+                "the fugacity of component {i} at T = {t} K, p = {p} Pa leaves the floating-point \
+                 range (ln φ = {l})",
+                t = num(t),
+                p = num(p),
+                l = num(props.ln_phi[i])
+            )));
+        }
         Ok(props)
     }
 }

@@ -114,19 +114,32 @@ impl tl_status {
 }
 
 /// An error on its way out through the boundary: the status and the message that
-/// `tl_last_error_message` will return.
+/// `tl_last_error_message` will return. Boxed, so that an `FfiResult` is one or two machine
+/// words and the success path of every entry point moves no more than that.
 #[derive(Debug, Clone, PartialEq)]
-pub(crate) struct FfiError {
+pub(crate) struct FfiError(Box<ErrorData>);
+
+/// What an [`FfiError`] carries.
+#[derive(Debug, Clone, PartialEq)]
+pub(crate) struct ErrorData {
     pub status: tl_status,
     pub message: String,
 }
 
+impl std::ops::Deref for FfiError {
+    type Target = ErrorData;
+    fn deref(&self) -> &ErrorData {
+        &self.0
+    }
+}
+
 impl FfiError {
+    #[cold]
     pub fn new(status: tl_status, message: impl Into<String>) -> Self {
-        FfiError {
+        FfiError(Box::new(ErrorData {
             status,
             message: message.into(),
-        }
+        }))
     }
 
     pub fn null(what: &str) -> Self {
@@ -145,6 +158,7 @@ impl FfiError {
 }
 
 impl From<tieline::Error> for FfiError {
+    #[cold]
     fn from(e: tieline::Error) -> Self {
         FfiError::new(tl_status::from_kind(e.kind()), e.to_string())
     }

@@ -9,7 +9,7 @@ root=$(cd "$(dirname "$0")/../.." && pwd)
 reps=${1:-40}
 shift || true
 calls=("$@")
-[ ${#calls[@]} -gt 0 ] || calls=(flash2-cert flash2 flash1-cert flash1 props sat)
+[ ${#calls[@]} -gt 0 ] || calls=(flash2-cert flash2 flash2-same flash1-cert flash1 props sat)
 cargo build --release -q -p tieline-ffi --bin tieline-ffi-instructions --manifest-path "$root/Cargo.toml"
 bin="$root/target/release/tieline-ffi-instructions"
 tmp=$(mktemp -d)

@@ -7,6 +7,8 @@
 //! Usage: `tieline-ffi-instructions WAY CALL REPETITIONS`, WAY `rust` or `c`, CALL one of
 //! - `flash2-cert`, `flash2`: warm PT flash at a two-phase point (alternating T ± 0.5 K), with
 //!   and without the stability certificate; the C call fills a `tl_result`;
+//! - `flash2-same`: the warm flash without certificate repeated at one point (the cheapest
+//!   flash: the warm start is the answer; the point of `benches/ffi_overhead.rs`);
 //! - `flash1-cert`, `flash1`: the same at a one-phase (vapour) point;
 //! - `props`: properties of one phase at (T, p, n) with ln φ (`tl_phase_properties`);
 //! - `sat`: vapour pressure of a pure component (`tl_saturation_pressure`).
@@ -33,7 +35,7 @@ const SAT_T: f64 = 350.0;
 const SAT_COMPONENT: usize = 2;
 
 fn usage(prog: &str) -> ! {
-    eprintln!("usage: {prog} rust|c flash2-cert|flash2|flash1-cert|flash1|props|sat REPETITIONS");
+    eprintln!("usage: {prog} rust|c flash2-cert|flash2|flash2-same|flash1-cert|flash1|props|sat REPETITIONS");
     std::process::exit(2)
 }
 
@@ -46,13 +48,20 @@ fn main() {
     let call = args[2].as_str();
     let certificate = call.ends_with("-cert");
     let (t0, p) = match call {
-        "flash2-cert" | "flash2" | "props" => TWO_PHASE,
+        "flash2-cert" | "flash2" | "flash2-same" | "props" => TWO_PHASE,
         "flash1-cert" | "flash1" => ONE_PHASE,
         "sat" => (SAT_T, 0.0),
         _ => usage(&args[0]),
     };
     // Alternate the temperature so a warm start has something to do.
-    let temp = |k: usize| t0 + if k.is_multiple_of(2) { 0.5 } else { -0.5 };
+    let same = call == "flash2-same";
+    let temp = |k: usize| {
+        if same {
+            t0
+        } else {
+            t0 + if k.is_multiple_of(2) { 0.5 } else { -0.5 }
+        }
+    };
     match args[1].as_str() {
         "rust" => {
             let comps = DataBank::embedded().get_many(&NAMES).expect("components");

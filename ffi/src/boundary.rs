@@ -114,19 +114,32 @@ impl tl_status {
 }
 
 /// An error on its way out through the boundary: the status and the message that
-/// `tl_last_error_message` will return.
+/// `tl_last_error_message` will return. Boxed, so that an `FfiResult` is one or two machine
+/// words and the success path of every entry point moves no more than that.
 #[derive(Debug, Clone, PartialEq)]
-pub(crate) struct FfiError {
+pub(crate) struct FfiError(Box<ErrorData>);
+
+/// What an [`FfiError`] carries.
+#[derive(Debug, Clone, PartialEq)]
+pub(crate) struct ErrorData {
     pub status: tl_status,
     pub message: String,
 }
 
+impl std::ops::Deref for FfiError {
+    type Target = ErrorData;
+    fn deref(&self) -> &ErrorData {
+        &self.0
+    }
+}
+
 impl FfiError {
+    #[cold]
     pub fn new(status: tl_status, message: impl Into<String>) -> Self {
-        FfiError {
+        FfiError(Box::new(ErrorData {
             status,
             message: message.into(),
-        }
+        }))
     }
 
     pub fn null(what: &str) -> Self {
@@ -145,6 +158,7 @@ impl FfiError {
 }
 
 impl From<tieline::Error> for FfiError {
+    #[cold]
     fn from(e: tieline::Error) -> Self {
         FfiError::new(tl_status::from_kind(e.kind()), e.to_string())
     }
@@ -554,5 +568,122 @@ pub(crate) unsafe fn write_text(
             tl_status::BufferTooSmall,
             format!("the buffer holds {len} bytes; {need} are required (including the NUL)"),
         ))
+    }
+}
+
+// ---------------------------------------------------------------------------------------------
+// Handle cells
+
+/// Interior state of a [`TryCell`]: the writer bit, the poison bit and the reader count.
+const WRITER: usize = 1 << (usize::BITS - 1);
+const POISON: usize = 1 << (usize::BITS - 2);
+const READERS: usize = POISON - 1;
+
+/// The value behind a mutable handle (a context, a result): many readers or one writer at a
+/// time, never waiting — a call that finds the value in use by another thread is told so at
+/// once (`TL_STATUS_BUSY`). Taking and releasing it is one atomic read-modify-write and one
+/// plain atomic store on the uncontended path. A writer that unwinds (a panic caught at the
+/// boundary) leaves the cell poisoned; the next writer is told, so it can reset the value.
+pub(crate) struct TryCell<T> {
+    state: std::sync::atomic::AtomicUsize,
+    value: std::cell::UnsafeCell<T>,
+}
+
+// SAFETY: the state word gives shared access to readers only while no writer holds the cell
+// and exclusive access to one writer (the protocol of a reader–writer lock), so the value is
+// sent or shared across threads only as `RwLock<T>` would.
+unsafe impl<T: Send> Send for TryCell<T> {}
+// SAFETY: as above; readers on several threads share `&T`, hence `T: Sync`.
+unsafe impl<T: Send + Sync> Sync for TryCell<T> {}
+
+impl<T> TryCell<T> {
+    /// A free, unpoisoned cell holding `value`.
+    pub fn new(value: T) -> Self {
+        TryCell {
+            state: std::sync::atomic::AtomicUsize::new(0),
+            value: std::cell::UnsafeCell::new(value),
+        }
+    }
+
+    /// Exclusive access, or `None` while another thread reads or writes. The flag is true when
+    /// the previous writer unwound (the value may be half-updated); taking it clears the poison.
+    pub fn try_write(&self) -> Option<(TryWriteGuard<'_, T>, bool)> {
+        use std::sync::atomic::Ordering::{Acquire, Relaxed};
+        let s = self.state.load(Relaxed);
+        if s & !POISON != 0 {
+            return None;
+        }
+        self.state.compare_exchange(s, WRITER, Acquire, Relaxed).ok()?;
+        Some((TryWriteGuard { cell: self }, s & POISON != 0))
+    }
+
+    /// Shared access, or `None` while another thread writes. A poisoned value reads as it was
+    /// left.
+    pub fn try_read(&self) -> Option<TryReadGuard<'_, T>> {
+        use std::sync::atomic::Ordering::{Acquire, Relaxed};
+        let mut s = self.state.load(Relaxed);
+        loop {
+            if s & WRITER != 0 || s & READERS == READERS {
+                return None;
+            }
+            match self.state.compare_exchange_weak(s, s + 1, Acquire, Relaxed) {
+                Ok(_) => return Some(TryReadGuard { cell: self }),
+                Err(now) => s = now,
+            }
+        }
+    }
+
+    /// Whether the last writer unwound and no writer has taken the cell since.
+    #[cfg(test)]
+    pub fn is_poisoned(&self) -> bool {
+        self.state.load(std::sync::atomic::Ordering::Relaxed) & POISON != 0
+    }
+}
+
+/// Exclusive access to the value of a [`TryCell`]; released (and poisoned if unwinding) on drop.
+pub(crate) struct TryWriteGuard<'a, T> {
+    cell: &'a TryCell<T>,
+}
+
+impl<T> std::ops::Deref for TryWriteGuard<'_, T> {
+    type Target = T;
+    fn deref(&self) -> &T {
+        // SAFETY: the writer bit is held: no other reference to the value exists.
+        unsafe { &*self.cell.value.get() }
+    }
+}
+
+impl<T> std::ops::DerefMut for TryWriteGuard<'_, T> {
+    fn deref_mut(&mut self) -> &mut T {
+        // SAFETY: the writer bit is held: no other reference to the value exists.
+        unsafe { &mut *self.cell.value.get() }
+    }
+}
+
+impl<T> Drop for TryWriteGuard<'_, T> {
+    fn drop(&mut self) {
+        // While the writer bit is set no other thread changes the state, so a plain store
+        // releases it.
+        let next = if std::thread::panicking() { POISON } else { 0 };
+        self.cell.state.store(next, std::sync::atomic::Ordering::Release);
+    }
+}
+
+/// Shared access to the value of a [`TryCell`]; released on drop.
+pub(crate) struct TryReadGuard<'a, T> {
+    cell: &'a TryCell<T>,
+}
+
+impl<T> std::ops::Deref for TryReadGuard<'_, T> {
+    type Target = T;
+    fn deref(&self) -> &T {
+        // SAFETY: a reader count is held: no writer exists until it is released.
+        unsafe { &*self.cell.value.get() }
+    }
+}
+
+impl<T> Drop for TryReadGuard<'_, T> {
+    fn drop(&mut self) {
+        self.cell.state.fetch_sub(1, std::sync::atomic::Ordering::Release);
     }
 }

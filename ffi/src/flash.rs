@@ -4,8 +4,8 @@
 use crate::boundary::*;
 use crate::model::{ModelData, model_ref, tl_model};
 use crate::result::{ResultData, store_flash, tl_phase_kind, tl_result, write};
+use std::sync::Arc;
 use std::sync::atomic::{AtomicUsize, Ordering};
-use std::sync::{Arc, Mutex, TryLockError};
 use tieline::equilibrium::batch::{BatchLayout, flash_run, run_len};
 use tieline::equilibrium::{FlashContext, FlashOptions, FlashResult, StabilityOptions, stability};
 use tieline::model::FluidModel;
@@ -144,7 +144,7 @@ pub(crate) struct ContextData {
 }
 
 impl Castable for tl_context {
-    type Inner = Mutex<ContextData>;
+    type Inner = TryCell<ContextData>;
     type Ownership = OwnedBox;
     const TAG: u64 = 0x746c_6374_7874_3031; // "tlctxt01"
     const NAME: &'static str = "context";
@@ -154,19 +154,17 @@ impl Castable for tl_context {
 ///
 /// # Safety
 /// As [`try_ref`].
-unsafe fn lock<'a>(c: *mut tl_context) -> FfiResult<std::sync::MutexGuard<'a, ContextData>> {
+unsafe fn lock<'a>(c: *mut tl_context) -> FfiResult<TryWriteGuard<'a, ContextData>> {
     // SAFETY: forwarded contract.
-    let m = unsafe { try_ref(c.cast_const())? };
-    match m.try_lock() {
-        Ok(g) => Ok(g),
-        Err(TryLockError::Poisoned(p)) => {
-            let mut g = p.into_inner();
+    let cell = unsafe { try_ref(c.cast_const())? };
+    match cell.try_write() {
+        Some((g, false)) => Ok(g),
+        Some((mut g, true)) => {
             let nc = g.model.value.model.num_components();
             g.flash = FlashContext::new(nc);
-            m.clear_poison();
             Ok(g)
         }
-        Err(TryLockError::WouldBlock) => Err(FfiError::new(
+        None => Err(FfiError::new(
             tl_status::Busy,
             "the context is in use by another thread (a context serves one thread at a time)",
         )),
@@ -181,7 +179,7 @@ pub unsafe extern "C" fn tl_context_new(model: *const tl_model, out: *mut *mut t
         // SAFETY: caller contract.
         let (model, out) = unsafe { (clone_arc(model)?, Out::new(out, "out")?) };
         let nc = model.value.model.num_components();
-        out.set(new_box::<tl_context>(Mutex::new(ContextData {
+        out.set(new_box::<tl_context>(TryCell::new(ContextData {
             model,
             flash: FlashContext::new(nc),
         })));

@@ -4,7 +4,6 @@
 use crate::boundary::*;
 use crate::model::{model_ref, tl_model};
 use std::ffi::c_char;
-use std::sync::{RwLock, RwLockReadGuard, RwLockWriteGuard, TryLockError};
 use tieline::equilibrium::{FlashResult, Phase, StabilityResult};
 use tieline::model::{FluidModel, PhaseKind, Properties};
 
@@ -73,7 +72,7 @@ pub(crate) enum ResultData {
 }
 
 impl Castable for tl_result {
-    type Inner = RwLock<ResultData>;
+    type Inner = TryCell<ResultData>;
     type Ownership = OwnedBox;
     const TAG: u64 = 0x746c_7265_7375_6c74; // "tlresult"
     const NAME: &'static str = "result";
@@ -90,45 +89,52 @@ fn busy() -> FfiError {
 ///
 /// # Safety
 /// As [`try_ref`].
-pub(crate) unsafe fn read<'a>(r: *const tl_result) -> FfiResult<RwLockReadGuard<'a, ResultData>> {
+pub(crate) unsafe fn read<'a>(r: *const tl_result) -> FfiResult<TryReadGuard<'a, ResultData>> {
     // SAFETY: forwarded contract.
-    let lock = unsafe { try_ref(r)? };
-    match lock.try_read() {
-        Ok(g) => Ok(g),
-        // A panic while filling left it half-written: it reads as whatever was written; the
-        // next fill overwrites it, and the poison is cleared there.
-        Err(TryLockError::Poisoned(p)) => Ok(p.into_inner()),
-        Err(TryLockError::WouldBlock) => Err(busy()),
-    }
+    let cell = unsafe { try_ref(r)? };
+    // A panic while filling left it half-written: it reads as whatever was written; the next
+    // fill overwrites it.
+    cell.try_read().ok_or_else(busy)
 }
 
-/// Write access to a result.
+/// Write access to a result; one left half-written by a panic is emptied first.
 ///
 /// # Safety
 /// As [`try_ref`].
-pub(crate) unsafe fn write<'a>(r: *mut tl_result) -> FfiResult<RwLockWriteGuard<'a, ResultData>> {
+pub(crate) unsafe fn write<'a>(r: *mut tl_result) -> FfiResult<TryWriteGuard<'a, ResultData>> {
     // SAFETY: forwarded contract.
-    let lock = unsafe { try_ref(r.cast_const())? };
-    match lock.try_write() {
-        Ok(g) => Ok(g),
-        Err(TryLockError::Poisoned(p)) => {
-            let mut g = p.into_inner();
+    let cell = unsafe { try_ref(r.cast_const())? };
+    match cell.try_write() {
+        Some((g, false)) => Ok(g),
+        Some((mut g, true)) => {
             *g = ResultData::Empty;
-            lock.clear_poison();
             Ok(g)
         }
-        Err(TryLockError::WouldBlock) => Err(busy()),
+        None => Err(busy()),
     }
 }
 
+/// Copies `src` into `dst`, reusing its storage: a plain copy when the lengths agree (the
+/// steady state of a context filling the same result), else a refill.
+#[inline]
+fn copy_values(dst: &mut Vec<f64>, src: &[f64]) {
+    if dst.len() == src.len() {
+        dst.copy_from_slice(src);
+    } else {
+        dst.clear();
+        dst.extend_from_slice(src);
+    }
+}
+
+#[inline]
 fn copy_phase(dst: &mut Phase, src: &Phase) {
     dst.kind = src.kind;
     dst.amount = src.amount;
     dst.fraction = src.fraction;
-    dst.composition.clone_from(&src.composition);
+    copy_values(&mut dst.composition, &src.composition);
     dst.molar_volume = src.molar_volume;
     dst.z = src.z;
-    dst.ln_phi.clone_from(&src.ln_phi);
+    copy_values(&mut dst.ln_phi, &src.ln_phi);
 }
 
 /// Stores a flash result, reusing the storage of a previous flash result (no allocation when
@@ -140,22 +146,29 @@ pub(crate) fn store_flash(dst: &mut ResultData, src: &FlashResult) {
     };
     d.temperature = src.temperature;
     d.pressure = src.pressure;
-    d.feed.clone_from(&src.feed);
-    d.phases.truncate(src.phases.len());
-    let common = d.phases.len();
-    for (a, b) in d.phases.iter_mut().zip(&src.phases) {
-        copy_phase(a, b);
+    copy_values(&mut d.feed, &src.feed);
+    if d.phases.len() == src.phases.len() {
+        for (a, b) in d.phases.iter_mut().zip(&src.phases) {
+            copy_phase(a, b);
+        }
+    } else {
+        d.phases.truncate(src.phases.len());
+        let common = d.phases.len();
+        for (a, b) in d.phases.iter_mut().zip(&src.phases) {
+            copy_phase(a, b);
+        }
+        d.phases.extend(src.phases[common..].iter().cloned());
     }
-    d.phases.extend(src.phases[common..].iter().cloned());
     match (&mut d.tie_line, &src.tie_line) {
+        (None, None) => {}
         (Some(a), Some(b)) => {
             a.beta = b.beta;
-            a.x.clone_from(&b.x);
-            a.y.clone_from(&b.y);
+            copy_values(&mut a.x, &b.x);
+            copy_values(&mut a.y, &b.y);
         }
         (a, b) => a.clone_from(b),
     }
-    d.diagnostics.clone_from(&src.diagnostics);
+    d.diagnostics = src.diagnostics.clone();
 }
 
 /// The flash result held, or `WrongResultKind`.
@@ -198,7 +211,7 @@ pub unsafe extern "C" fn tl_result_new(out: *mut *mut tl_result) -> tl_status {
     ffi_boundary!({
         // SAFETY: caller contract.
         let out = unsafe { Out::new(out, "out")? };
-        out.set(new_box::<tl_result>(RwLock::new(ResultData::Empty)));
+        out.set(new_box::<tl_result>(TryCell::new(ResultData::Empty)));
         Ok(())
     })
 }

@@ -264,7 +264,7 @@ fn a_context_poisoned_by_a_panic_recovers_cold() {
         // Poison the context's lock as a panic inside a call would.
         let lock = try_ref::<tl_context>(ctx).unwrap();
         let _ = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
-            let _g = lock.lock().unwrap();
+            let _g = lock.try_write().unwrap();
             panic!("simulated defect while the context is locked");
         }));
         assert!(lock.is_poisoned());
@@ -278,9 +278,10 @@ fn a_context_poisoned_by_a_panic_recovers_cold() {
         // The same for a result.
         let rl = try_ref::<tl_result>(r).unwrap();
         let _ = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
-            let _g = rl.write().unwrap();
+            let _g = rl.try_write().unwrap();
             panic!("simulated defect while the result is written");
         }));
+        assert!(rl.is_poisoned());
         assert_eq!(
             tl_context_flash(ctx, 301.0, 5e6, z.as_ptr(), 2, ptr::null(), r),
             tl_status::Ok
@@ -331,4 +332,66 @@ fn version_number_matches_the_package_version() {
             "TL_VERSION_{name} in the header"
         );
     }
+}
+
+#[test]
+fn a_try_cell_shares_readers_excludes_writers_and_poisons() {
+    use crate::boundary::TryCell;
+    let c = TryCell::new(1);
+    {
+        let (a, b) = (c.try_read().unwrap(), c.try_read().unwrap());
+        assert_eq!(*a + *b, 2);
+        assert!(c.try_write().is_none(), "no writer while readers hold the cell");
+    }
+    {
+        let (mut w, poisoned) = c.try_write().unwrap();
+        assert!(!poisoned);
+        *w = 2;
+        assert!(c.try_write().is_none() && c.try_read().is_none(), "the writer is alone");
+    }
+    assert_eq!(*c.try_read().unwrap(), 2);
+    let _ = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+        let (mut w, _) = c.try_write().unwrap();
+        *w = 3;
+        panic!("simulated defect while writing");
+    }));
+    assert!(c.is_poisoned());
+    assert_eq!(*c.try_read().unwrap(), 3, "a poisoned value reads as it was left");
+    assert!(c.is_poisoned(), "reading does not clear the poison");
+    let (_, poisoned) = c.try_write().unwrap();
+    assert!(poisoned, "the next writer is told");
+    assert!(!c.is_poisoned());
+}
+
+#[test]
+fn a_try_cell_never_lets_a_writer_meet_anyone() {
+    use crate::boundary::TryCell;
+    use std::sync::atomic::{AtomicUsize, Ordering};
+    // Each writer sets the pair to (k, k) in two steps; a reader or writer that ever sees the
+    // two halves differ met a writer mid-update.
+    let c = TryCell::new((0usize, 0usize));
+    let (wrote, read) = (AtomicUsize::new(0), AtomicUsize::new(0));
+    std::thread::scope(|s| {
+        for id in 0..8usize {
+            let (c, wrote, read) = (&c, &wrote, &read);
+            s.spawn(move || {
+                for k in 0..20_000usize {
+                    if (k + id) % 3 == 0 {
+                        if let Some((mut w, _)) = c.try_write() {
+                            assert_eq!(w.0, w.1);
+                            w.0 = k;
+                            std::hint::black_box(&mut *w);
+                            w.1 = k;
+                            wrote.fetch_add(1, Ordering::Relaxed);
+                        }
+                    } else if let Some(r) = c.try_read() {
+                        assert_eq!(r.0, r.1);
+                        read.fetch_add(1, Ordering::Relaxed);
+                    }
+                }
+            });
+        }
+    });
+    assert!(wrote.load(Ordering::Relaxed) > 0 && read.load(Ordering::Relaxed) > 0);
+    assert!(c.try_write().is_some(), "every guard was released");
 }

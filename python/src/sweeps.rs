@@ -8,6 +8,7 @@ use numpy::{PyArray1, PyReadonlyArray1, PyReadonlyArray2, PyUntypedArrayMethods}
 use pyo3::prelude::*;
 use pyo3::types::{PyDict, PyList};
 use tieline::Error;
+use tieline::equilibrium::batch::{BatchLayout, Partition, WarmStart, flash_run, run_len};
 use tieline::equilibrium::{FlashContext, FlashResult};
 use tieline::model::{FluidModel, Model, PhaseKind, PhaseState};
 
@@ -246,7 +247,7 @@ pub fn flash_sweep<'py>(
     pressure: PyReadonlyArray1<'py, f64>,
     amounts: PyReadonlyArray2<'py, f64>,
     options: PyRef<'py, crate::PyFlashOptions>,
-    block: usize,
+    block: Option<usize>,
     threads: Option<usize>,
     progress: Option<Bound<'py, PyAny>>,
     raise_errors: bool,
@@ -262,13 +263,20 @@ pub fn flash_sweep<'py>(
             &format!("{} values for {} temperatures", p.len(), t.len()),
         ));
     }
-    if block == 0 {
+    if block == Some(0) {
         return Err(errors::invalid(
             py,
             "block",
             "0; a block of at least 1 point is required",
         ));
     }
+    // The layout of the core's `flash_batch`: blocks of `block_len(npts)` points unless the
+    // caller fixes the block, warm starts between near neighbours only. It depends on the
+    // points alone, so the results do not depend on the thread count.
+    let layout = BatchLayout {
+        partition: block.map_or(Partition::Auto, Partition::Blocks),
+        warm_start: WarmStart::Near,
+    };
     let npts = t.len();
     let (f, per_point) = feeds(py, &amounts, npts, nc)?;
     let pts = Points {
@@ -280,20 +288,32 @@ pub fn flash_sweep<'py>(
     };
     let opts = options.inner;
     let slots = opts.max_phases;
+    let block = run_len(&layout, npts, parallel::effective_threads(threads));
     let nblocks = npts.div_ceil(block);
     let blocks = parallel::run(py, nblocks, npts, threads, progress.as_ref(), |b, ctl| {
         let mut fb = FlashBlock::default();
-        let start = b * block;
-        let end = (start + block).min(npts);
+        let range = b * block..((b + 1) * block).min(npts);
         let mut ctx = FlashContext::new(nc);
-        for i in start..end {
-            if ctl.cancelled() {
-                break;
-            }
-            let r = ctx.flash(m, pts.a[i], pts.b[i], pts.feed(i), &opts);
-            fb.push(i, nc, slots, r.map_err(|e| e.clone()));
-            ctl.advance(1);
-        }
+        // Once the sweep is cancelled its results are discarded: the remaining points of the
+        // block get an empty feed, which the flash rejects at its input check, so a long
+        // block stops at once.
+        let feed = |i: usize| if ctl.cancelled() { &[][..] } else { pts.feed(i) };
+        flash_run(
+            &mut ctx,
+            m,
+            pts.a,
+            pts.b,
+            feed,
+            range,
+            &opts,
+            layout.warm_start,
+            |i, r| {
+                if !ctl.cancelled() {
+                    fb.push(i, nc, slots, r.map_err(|e| e.clone()));
+                    ctl.advance(1);
+                }
+            },
+        );
         fb
     })?;
     let mut all = FlashBlock::default();

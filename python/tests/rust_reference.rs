@@ -9,10 +9,11 @@
 
 use serde_json::{Value, json};
 use std::path::PathBuf;
+use tieline::equilibrium::batch::{BatchLayout, Partition, WarmStart, flash_batch_with};
 use tieline::equilibrium::{
-    Coexistence, FlashContext, FlashOptions, PhasePoint, PurePhase, PurePhases, SaturationOptions, SolidFlashOptions,
-    SolidPhaseSpec, StabilityOptions, bubble_pressure, dew_pressure, flash_pt, flash_pt_with_solids,
-    frost_point_temperature, saturation_pressure, saturation_temperature, stability,
+    Coexistence, FlashOptions, PhasePoint, PurePhase, PurePhases, SaturationOptions, SolidFlashOptions, SolidPhaseSpec,
+    StabilityOptions, bubble_pressure, dew_pressure, flash_pt, flash_pt_with_solids, frost_point_temperature,
+    saturation_pressure, saturation_temperature, stability,
 };
 use tieline::model::{
     CubicEos, CubicKind, FusionData, FusionSolid, Iapws95, IceIh, Model, PhaseState, RootChoice, SolidModel,
@@ -46,18 +47,19 @@ fn outcome<T: serde::Serialize>(r: Result<T, tieline::Error>) -> Value {
     }
 }
 
-/// The vectorised flash of the Python package: consecutive blocks of `block` points, each
-/// solved by one warm-started context.
-fn sweep(m: &Model, t: &[f64], p: &[f64], feed: &[f64], block: usize) -> Vec<Value> {
-    let opts = FlashOptions::default();
-    let mut out = Vec::new();
-    for start in (0..t.len()).step_by(block) {
-        let mut ctx = FlashContext::new(feed.len());
-        for i in start..(start + block).min(t.len()) {
-            out.push(outcome(ctx.flash(m, t[i], p[i], feed, &opts).cloned()));
-        }
-    }
-    out
+/// The vectorised flash of the Python package: the core batch with blocks of `block` points
+/// (None: the default layout of `flash_batch`, blocks of 16 to 64), warm starts between near
+/// neighbours only.
+fn sweep(m: &Model, t: &[f64], p: &[f64], feed: &[f64], block: Option<usize>) -> Vec<Value> {
+    let layout = BatchLayout {
+        partition: block.map_or(Partition::Auto, Partition::Blocks),
+        warm_start: WarmStart::Near,
+    };
+    flash_batch_with(m, t, p, feed, &FlashOptions::default(), 1, &layout)
+        .expect("the batch runs")
+        .into_iter()
+        .map(outcome)
+        .collect()
 }
 
 fn point(p: &PhasePoint) -> Value {
@@ -244,7 +246,8 @@ fn write_reference_outputs() {
         cases.insert(format!("saturation/{}", c["id"].as_str().unwrap()), outcome(r));
     }
 
-    // A T–p sweep of a binary, ordered along T within each pressure, in blocks of 16.
+    // A T–p sweep of a binary, ordered along T within each pressure, in blocks of 24 and in the
+    // default layout (blocks of 16 for 120 points).
     let desc = json!({"model": "cubic", "kind": "peng_robinson", "components": ["methane", "n-butane"],
                       "kij": [[0, 1, 0.02]]});
     let m = model(&desc).expect("binary model");
@@ -258,8 +261,9 @@ fn write_reference_outputs() {
         }
     }
     let feed = vec![0.6, 0.4];
-    let block = 16;
-    let flash_sweep = sweep(&m, &t, &p, &feed, block);
+    let block = 24;
+    let flash_sweep = sweep(&m, &t, &p, &feed, Some(block));
+    let default_sweep = sweep(&m, &t, &p, &feed, None);
 
     let curve_t: Vec<f64> = (0..15).map(|i| 200.0 + 15.0 * i as f64).collect();
     let bubble: Vec<Value> = curve_t
@@ -295,7 +299,8 @@ fn write_reference_outputs() {
         "binary": {
             "model": desc,
             "feed": feed,
-            "sweep": {"temperature": t, "pressure": p, "block": block, "results": flash_sweep},
+            "sweep": {"temperature": t, "pressure": p, "block": block, "results": flash_sweep,
+                      "default_block_results": default_sweep},
             "curves": {"temperature": curve_t, "bubble_pressure": bubble, "dew_pressure": dew,
                        "saturation_pressure_component1": psat,
                        "saturation_temperature_pressure": tsat_p, "saturation_temperature_component1": tsat},
@@ -313,6 +318,16 @@ fn write_reference_outputs() {
     assert!(
         two_phase > 10 && two_phase < flash_sweep.len() - 10,
         "{two_phase} two-phase points"
+    );
+    // ... and warm starts as well as cold starts inside blocks (neighbours too far apart).
+    let warm = flash_sweep
+        .iter()
+        .filter(|r| r["diagnostics"]["warm_start"] == true)
+        .count();
+    let blocks = flash_sweep.len().div_ceil(block);
+    assert!(
+        warm > 10 && flash_sweep.len() - warm > blocks,
+        "{warm} warm starts in {blocks} blocks"
     );
     let path = std::env::var_os("TIELINE_REFERENCE_OUT")
         .map(PathBuf::from)

@@ -102,9 +102,24 @@ def test_block_of_one_is_the_cold_scalar_flash(binary):
 
 def test_warm_start_used_in_sweeps(binary):
     t = np.linspace(250.0, 300.0, 64)
-    s = tl.flash(binary, t, 4.0e6, [0.5, 0.5])
+    s = tl.flash(binary, t, 4.0e6, [0.5, 0.5], block=64)
     assert (s.num_phases == 2).all()
     assert s.warm_start[1:].all() and not s.warm_start[0]
+    # The default layout is that of the Rust flash_batch: blocks of 16 points for 64 (1/64 of
+    # the points, at least 16), each starting cold.
+    d = tl.flash(binary, t, 4.0e6, [0.5, 0.5])
+    starts = np.arange(64) % 16 == 0
+    assert not d.warm_start[starts].any() and d.warm_start[~starts].all()
+
+
+def test_no_warm_start_between_distant_points(binary):
+    # Alternating 250 K and 300 K: neighbours 20 % apart in T start cold, whatever the block.
+    t = np.tile([250.0, 300.0], 16)
+    s = tl.flash(binary, t, 4.0e6, [0.5, 0.5], block=32)
+    assert not s.warm_start.any()
+    for i in (0, 1):
+        r = tl.flash(binary, float(t[i]), 4.0e6, [0.5, 0.5])
+        assert (s.gibbs[i::2] == r.diagnostics.gibbs).all()
 
 
 def test_progress_callback(binary):

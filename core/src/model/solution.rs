@@ -22,7 +22,7 @@
 //! stability, bubble and dew points, azeotropes — goes through [`FluidModel::phase_ln_phi`] and
 //! works unchanged.
 
-use super::activity::ActivityModel;
+use super::activity::{ActivityModel, ParamId};
 use super::{
     CriticalConstants, CubicEos, ExcessGibbs, FluidModel, FugacityWork, HelmholtzDerivs, LnPhi, Need, RootChoice,
     VolumeRoots,
@@ -84,6 +84,9 @@ pub struct SolutionModel {
     vapor: VaporPhase,
     poynting: bool,
     extrapolate_vapor_pressures: bool,
+    /// Identity of the parameter set: the key of the pure-liquid terms cached per temperature
+    /// in the caller's [`FugacityWork`]. Renewed by every `with_*` change; ignored by `==`.
+    id: ParamId,
 }
 
 impl TryFrom<SolutionRepr> for SolutionModel {
@@ -97,6 +100,7 @@ impl TryFrom<SolutionRepr> for SolutionModel {
             vapor: r.vapor,
             poynting: r.poynting,
             extrapolate_vapor_pressures: r.extrapolate_vapor_pressures,
+            id: ParamId::fresh(),
         };
         m.validate()?;
         Ok(m)
@@ -158,6 +162,7 @@ impl SolutionModel {
             vapor: VaporPhase::IdealGas,
             poynting: false,
             extrapolate_vapor_pressures: false,
+            id: ParamId::fresh(),
         };
         m.validate()?;
         Ok(m)
@@ -166,6 +171,7 @@ impl SolutionModel {
     /// Replaces the vapour-pressure correlations (one per component, in order).
     pub fn with_vapor_pressures(mut self, vp: Vec<VaporPressure>) -> Result<SolutionModel> {
         self.vapor_pressures = vp;
+        self.id = ParamId::fresh();
         self.validate()?;
         Ok(self)
     }
@@ -173,6 +179,7 @@ impl SolutionModel {
     /// Replaces the liquid molar volumes used by the Poynting factors (one per component).
     pub fn with_liquid_volumes(mut self, v: Vec<RackettVolume>) -> Result<SolutionModel> {
         self.liquid_volumes = v;
+        self.id = ParamId::fresh();
         self.validate()?;
         Ok(self)
     }
@@ -180,6 +187,7 @@ impl SolutionModel {
     /// Sets the vapour model. A cubic must have the same components in the same order.
     pub fn with_vapor(mut self, vapor: VaporPhase) -> Result<SolutionModel> {
         self.vapor = vapor;
+        self.id = ParamId::fresh();
         self.validate()?;
         Ok(self)
     }
@@ -187,6 +195,7 @@ impl SolutionModel {
     /// Switches the Poynting factors exp(v_i^L (p − p_i^sat)/(RT)) on or off.
     pub fn with_poynting(mut self, on: bool) -> SolutionModel {
         self.poynting = on;
+        self.id = ParamId::fresh();
         self
     }
 
@@ -198,6 +207,7 @@ impl SolutionModel {
     /// here. Initial K-value estimates never extrapolate (see [`FluidModel::estimate_ln_k`]).
     pub fn with_extrapolated_vapor_pressures(mut self, on: bool) -> SolutionModel {
         self.extrapolate_vapor_pressures = on;
+        self.id = ParamId::fresh();
         self
     }
 
@@ -299,7 +309,14 @@ impl SolutionModel {
         Ok(())
     }
 
-    /// Fills `out` with the liquid branch. `buf` holds 7 nc numbers of scratch.
+    /// Scratch numbers the liquid branch needs for `nc` components.
+    fn liquid_scratch_len(nc: usize) -> usize {
+        3 + 8 * nc
+    }
+
+    /// Fills `out` with the liquid branch. `buf` holds [`Self::liquid_scratch_len`] numbers
+    /// kept between calls: the pure-liquid terms of the last temperature (ln p_i^sat, p_i^sat,
+    /// ln φ_i^sat, v_i^L and their T-derivatives), reused while T and the model are unchanged.
     #[allow(clippy::too_many_arguments)]
     fn liquid_branch(
         &self,
@@ -314,46 +331,57 @@ impl SolutionModel {
     ) -> Result<()> {
         let nc = n.len();
         let rt = R * t;
-        let (lnps, rest) = buf.split_at_mut(nc);
+        let (unit, rest) = buf.split_at_mut(nc);
+        let (key, rest) = rest.split_at_mut(3);
+        let (lnps, rest) = rest.split_at_mut(nc);
         let (dlnps, rest) = rest.split_at_mut(nc);
+        let (psat, rest) = rest.split_at_mut(nc);
         let (lnphis, rest) = rest.split_at_mut(nc);
         let (dlnphis, rest) = rest.split_at_mut(nc);
-        let (unit, _) = rest.split_at_mut(nc);
-        for i in 0..nc {
-            let (l, d) = if self.extrapolate_vapor_pressures {
-                self.vapor_pressures[i].ln_pressure_extrapolated(t)?
-            } else {
-                self.vapor_pressures[i].ln_pressure(t)?
-            };
-            lnps[i] = l;
-            dlnps[i] = d;
-        }
-        match &self.vapor {
-            VaporPhase::IdealGas => {
-                lnphis.fill(0.0);
-                dlnphis.fill(0.0);
-            }
-            VaporPhase::Cubic(cub) => {
-                // φ_i^sat of each pure vapour at (T, p_i^sat): the cubic evaluated on its vapour
-                // root, with `out` as scratch before it receives the liquid's values.
-                let cneed = Need {
-                    composition: false,
-                    temperature: need.temperature,
-                    pressure: need.temperature,
+        let (vl, rest) = rest.split_at_mut(nc);
+        let (dvl, _) = rest.split_at_mut(nc);
+        if !self.id.cached(key, t, need.temperature) {
+            // Marked invalid while being filled, so that an error part-way leaves no stale key.
+            key[0] = 0.0;
+            for i in 0..nc {
+                let (l, d) = if self.extrapolate_vapor_pressures {
+                    self.vapor_pressures[i].ln_pressure_extrapolated(t)?
+                } else {
+                    self.vapor_pressures[i].ln_pressure(t)?
                 };
-                for i in 0..nc {
-                    unit.fill(0.0);
-                    unit[i] = 1.0;
-                    cub.phase_ln_phi(t, lnps[i].exp(), unit, RootChoice::Vapor, cneed, work, out)?;
-                    lnphis[i] = out.ln_phi[i];
-                    dlnphis[i] = if need.temperature {
-                        // Along the saturation curve: ∂/∂T + ∂/∂p · p^sat d ln p^sat/dT.
-                        out.dt[i] + out.dp[i] * lnps[i].exp() * dlnps[i]
-                    } else {
-                        0.0
+                lnps[i] = l;
+                dlnps[i] = d;
+                psat[i] = l.exp();
+                (vl[i], dvl[i]) = self.liquid_volumes[i].volume(t)?;
+            }
+            match &self.vapor {
+                VaporPhase::IdealGas => {
+                    lnphis.fill(0.0);
+                    dlnphis.fill(0.0);
+                }
+                VaporPhase::Cubic(cub) => {
+                    // φ_i^sat of each pure vapour at (T, p_i^sat): the cubic evaluated on its
+                    // vapour root, with `out` as scratch before it receives the liquid's values.
+                    let cneed = Need {
+                        composition: false,
+                        temperature: need.temperature,
+                        pressure: need.temperature,
                     };
+                    for i in 0..nc {
+                        unit.fill(0.0);
+                        unit[i] = 1.0;
+                        cub.phase_ln_phi(t, psat[i], unit, RootChoice::Vapor, cneed, work, out)?;
+                        lnphis[i] = out.ln_phi[i];
+                        dlnphis[i] = if need.temperature {
+                            // Along the saturation curve: ∂/∂T + ∂/∂p · p^sat d ln p^sat/dT.
+                            out.dt[i] + out.dp[i] * psat[i] * dlnps[i]
+                        } else {
+                            0.0
+                        };
+                    }
                 }
             }
+            self.id.store(key, t, need.temperature);
         }
         let gneed = Need {
             pressure: false,
@@ -365,8 +393,7 @@ impl SolutionModel {
         let mut g = 0.0;
         let mut v = 0.0;
         for i in 0..nc {
-            let (vl, dvl) = self.liquid_volumes[i].volume(t)?;
-            let ps = lnps[i].exp();
+            let (vl, dvl, ps) = (vl[i], dvl[i], psat[i]);
             let poy = if self.poynting { vl * (p - ps) / rt } else { 0.0 };
             out.ln_phi[i] = ex.ln_gamma[i] + lnps[i] + lnphis[i] - lnp + poy;
             out.vbar[i] = vl;
@@ -523,8 +550,9 @@ impl FluidModel for SolutionModel {
         // Scratch for the liquid branch, kept in the spare store between calls (the models
         // called from here use only `work.derivs` and `work.excess`).
         let mut buf = std::mem::take(&mut work.spare.scratch);
-        if buf.len() < 7 * nc {
-            buf.resize(7 * nc, 0.0);
+        let len = Self::liquid_scratch_len(nc);
+        if buf.len() < len {
+            buf.resize(len, 0.0);
         }
         let r = match root {
             RootChoice::Liquid => self.liquid_branch(t, p, n, ntot, need, work, &mut buf, out),
@@ -723,6 +751,47 @@ mod tests {
         let comps = DataBank::embedded().get_many(&["methanol", "ethanol"]).unwrap();
         let mg = Margules::binary(["methanol", "methyl acetate"], 1.0, 0.0, (250.0, 400.0)).unwrap();
         assert!(SolutionModel::new(comps, mg.into()).is_err());
+    }
+
+    #[test]
+    fn cached_pure_liquid_terms_are_never_stale() {
+        // One work store shared by two models, at changing temperatures and needs, with a
+        // failing call in between: every result equals one from fresh storage, bit for bit.
+        let a = nrtl_model(false);
+        let b = nrtl_model(true);
+        let c = nrtl_model(true).with_poynting(false);
+        let n = [0.3, 0.5];
+        let mut w = FugacityWork::new(2);
+        let mut o = LnPhi::new(2);
+        for (step, (m, t, p)) in [
+            (&a, 340.0, 2e5),
+            (&a, 340.0, 3e5),
+            (&b, 340.0, 3e5),
+            (&c, 340.0, 3e5),
+            (&a, 345.0, 3e5),
+            (&b, 500.0, 3e5),
+            (&b, 345.0, 3e5),
+            (&a, 340.0, 2e5),
+        ]
+        .into_iter()
+        .enumerate()
+        {
+            for need in [Need::VALUES, Need::ALL] {
+                let r = m.phase_ln_phi(t, p, &n, RootChoice::Liquid, need, &mut w, &mut o);
+                let mut fw = FugacityWork::new(2);
+                let mut f = LnPhi::new(2);
+                let rf = m.phase_ln_phi(t, p, &n, RootChoice::Liquid, need, &mut fw, &mut f);
+                assert_eq!(r.is_ok(), rf.is_ok(), "step {step}");
+                if r.is_ok() {
+                    assert_eq!(o.ln_phi, f.ln_phi, "step {step}");
+                    if need.temperature {
+                        assert_eq!(o.dt, f.dt, "step {step}");
+                        assert_eq!(o.dp, f.dp, "step {step}");
+                        assert_eq!(o.dn, f.dn, "step {step}");
+                    }
+                }
+            }
+        }
     }
 
     #[test]

@@ -1,46 +1,12 @@
 //! The NRTL (non-random two-liquid) model of Renon & Prausnitz (1968), *AIChE J.* 14:135–144.
 
-use super::{ExcessDerivs, ExcessGibbs, check_call, check_names, check_range, finish, rows, scratch, square};
+use super::{
+    ExcessDerivs, ExcessGibbs, ParamId, check_call, check_names, check_range, dot, finish, mul_abt, rows, scratch,
+    square,
+};
 use crate::error::{Error, Result};
 use crate::model::Need;
 use serde::{Deserialize, Serialize};
-
-/// Σ_j a_j b_j with four partial sums (so that the compiler can vectorise it).
-#[inline]
-fn dot(a: &[f64], b: &[f64]) -> f64 {
-    let mut acc = [0.0f64; 4];
-    let mut ca = a.chunks_exact(4);
-    let mut cb = b.chunks_exact(4);
-    for (x, y) in (&mut ca).zip(&mut cb) {
-        for k in 0..4 {
-            acc[k] += x[k] * y[k];
-        }
-    }
-    let mut tail = 0.0;
-    for (x, y) in ca.remainder().iter().zip(cb.remainder()) {
-        tail += x * y;
-    }
-    (acc[0] + acc[1]) + (acc[2] + acc[3]) + tail
-}
-
-/// A process-unique identity of a model's parameter set: the key of the per-temperature
-/// terms cached in the caller's [`ExcessDerivs`] scratch. Models have no setters, so a
-/// parameter set never changes under its identity; clones share it. Ignored by `==`.
-#[derive(Debug, Clone, Copy)]
-pub(crate) struct ParamId(pub(crate) u64);
-
-impl ParamId {
-    pub(crate) fn fresh() -> Self {
-        static NEXT: std::sync::atomic::AtomicU64 = std::sync::atomic::AtomicU64::new(1);
-        ParamId(NEXT.fetch_add(1, std::sync::atomic::Ordering::Relaxed))
-    }
-}
-
-impl PartialEq for ParamId {
-    fn eq(&self, _: &Self) -> bool {
-        true
-    }
-}
 
 /// Celsius offset of the temperature form of the non-randomness α_ij, 273.15 K.
 const ALPHA_T_REF: f64 = 273.15;
@@ -226,124 +192,147 @@ impl ExcessGibbs for Nrtl {
             ..
         } = out;
         // Layout: a 3-value key of the cached temperature terms (model identity, T, whether
-        // the T-derivatives are included), τ, G, ∂τ/∂T, ∂G/∂T, then per-call storage.
-        let s = scratch(store, 3 + 7 * nn + 7 * nc);
+        // the T-derivatives are included), τ, G, τG, ∂G/∂T, ∂(τG)/∂T, then per-call storage.
+        let s = scratch(store, 3 + 8 * nn + 10 * nc);
         let (key, s) = s.split_at_mut(3);
         let (tau, s) = s.split_at_mut(nn);
         let (g, s) = s.split_at_mut(nn);
-        let (dtau, s) = s.split_at_mut(nn);
+        let (tg, s) = s.split_at_mut(nn);
         let (dg, s) = s.split_at_mut(nn);
+        let (dtg, s) = s.split_at_mut(nn);
         let (m, s) = s.split_at_mut(nn);
         let (pg, s) = s.split_at_mut(nn);
-        let (pm, s) = s.split_at_mut(nn);
+        let (a, s) = s.split_at_mut(nn);
         let (x, s) = s.split_at_mut(nc);
         let (sum_g, s) = s.split_at_mut(nc);
+        let (inv_s, s) = s.split_at_mut(nc);
         let (eps, s) = s.split_at_mut(nc);
+        let (w, s) = s.split_at_mut(nc);
         let (dsum_g, s) = s.split_at_mut(nc);
         let (deps, s) = s.split_at_mut(nc);
-        let (inv_s, _) = s.split_at_mut(nc);
+        let (u, s) = s.split_at_mut(nc);
+        let (v, s) = s.split_at_mut(nc);
+        let (z, _) = s.split_at_mut(nc);
 
-        // τ_ij, G_ij and their temperature derivatives, reused while T and the model are those
-        // of the previous call with this storage.
-        let id = f64::from_bits(self.id.0);
-        let cached =
-            key[0].to_bits() == id.to_bits() && key[1].to_bits() == t.to_bits() && (key[2] == 1.0 || !need.temperature);
+        // τ_ij, G_ij, τ_ij G_ij and their temperature derivatives, reused while T and the model
+        // are those of the previous call with this storage.
+        let cached = self.id.cached(key, t, need.temperature);
         if !cached {
             let ln_t = t.ln();
             let dtc = t - ALPHA_T_REF;
             for k in 0..nn {
                 let tk = self.a[k] + self.b[k] / t + self.e[k] * ln_t + self.f[k] * t;
                 let al = self.c[k] + self.d[k] * dtc;
+                let gk = (-al * tk).exp();
                 tau[k] = tk;
-                g[k] = (-al * tk).exp();
+                g[k] = gk;
+                tg[k] = tk * gk;
                 if need.temperature {
-                    dtau[k] = -self.b[k] / (t * t) + self.e[k] / t + self.f[k];
-                    dg[k] = -(self.d[k] * tk + al * dtau[k]) * g[k];
+                    let dtau = -self.b[k] / (t * t) + self.e[k] / t + self.f[k];
+                    let dgk = -(self.d[k] * tk + al * dtau) * gk;
+                    dg[k] = dgk;
+                    dtg[k] = dtau * gk + tk * dgk;
                 }
             }
-            key[0] = id;
-            key[1] = t;
-            key[2] = if need.temperature { 1.0 } else { 0.0 };
+            self.id.store(key, t, need.temperature);
         }
         for i in 0..nc {
             x[i] = n[i] / total;
         }
-        // S_i = Σ_k x_k G_ki, ε_i = Σ_k x_k τ_ki G_ki / S_i, M_ki = G_ki (τ_ki − ε_i)/S_i.
-        sum_g.iter_mut().for_each(|v| *v = 0.0);
-        eps.iter_mut().for_each(|v| *v = 0.0);
+        // S_i = Σ_k x_k G_ki and C_i = Σ_k x_k τ_ki G_ki (in `eps`), with their T-derivatives,
+        // accumulated row by row of the cached matrices.
+        sum_g.fill(0.0);
+        eps.fill(0.0);
+        if need.temperature {
+            dsum_g.fill(0.0);
+            deps.fill(0.0);
+        }
         for k in 0..nc {
             let xk = x[k];
-            let (gk, tk) = (&g[k * nc..(k + 1) * nc], &tau[k * nc..(k + 1) * nc]);
+            let (gk, tgk) = (&g[k * nc..][..nc], &tg[k * nc..][..nc]);
             for i in 0..nc {
                 sum_g[i] += xk * gk[i];
-                eps[i] += xk * tk[i] * gk[i];
+                eps[i] += xk * tgk[i];
+            }
+            if need.temperature {
+                let (dgk, dtgk) = (&dg[k * nc..][..nc], &dtg[k * nc..][..nc]);
+                for i in 0..nc {
+                    dsum_g[i] += xk * dgk[i];
+                    deps[i] += xk * dtgk[i];
+                }
             }
         }
-        let mut ge = 0.0;
+        // ε_i = C_i/S_i, g^E/RT = Σ_i x_i ε_i, w_i = x_i/S_i; ∂ε_i/∂T = (∂C_i/∂T − ε_i ∂S_i/∂T)/S_i.
+        let (mut ge, mut dge) = (0.0, 0.0);
         for i in 0..nc {
-            inv_s[i] = 1.0 / sum_g[i];
-            eps[i] *= inv_s[i];
+            let is = 1.0 / sum_g[i];
+            inv_s[i] = is;
+            eps[i] *= is;
+            w[i] = x[i] * is;
             ge += x[i] * eps[i];
-        }
-        for k in 0..nc {
-            for i in 0..nc {
-                let idx = k * nc + i;
-                m[idx] = g[idx] * (tau[idx] - eps[i]) * inv_s[i];
+            if need.temperature {
+                deps[i] = (deps[i] - eps[i] * dsum_g[i]) * is;
+                dge += x[i] * deps[i];
+                u[i] = w[i] * eps[i];
+                v[i] = w[i] * deps[i];
+                z[i] = w[i] * dsum_g[i];
             }
         }
         *g_excess = ge;
-        // ln γ_i = ε_i + Σ_j x_j M_ij.
+        // M_ij = G_ij (τ_ij − ε_j)/S_j and ln γ_i = ε_i + Σ_j x_j M_ij.
         for i in 0..nc {
-            let mut v = eps[i];
+            let (gi, ti, mi) = (&g[i * nc..][..nc], &tau[i * nc..][..nc], &mut m[i * nc..][..nc]);
             for j in 0..nc {
-                v += x[j] * m[i * nc + j];
+                mi[j] = gi[j] * (ti[j] - eps[j]) * inv_s[j];
             }
-            ln_gamma[i] = v;
+            ln_gamma[i] = eps[i] + dot(x, mi);
         }
         if need.composition {
             // ln γ_i is homogeneous of degree 0 in x, so ∂ln γ_i/∂n_k = (∂ln γ_i/∂x_k)/n_T with
-            // ∂ln γ_i/∂x_k = M_ki + M_ik − Σ_j x_j (G_ij M_kj + G_kj M_ij)/S_j (symmetric),
-            // written as row dot products with P_ij = x_j G_ij/S_j and Q_ij = x_j M_ij/S_j.
+            // ∂ln γ_i/∂x_k = M_ki + M_ik − Σ_j x_j (G_ij M_kj + G_kj M_ij)/S_j = M_ki + M_ik
+            // − A_ik − A_ki, where A = P Mᵀ and P_ij = w_j G_ij.
             for i in 0..nc {
+                let (pi, gi) = (&mut pg[i * nc..][..nc], &g[i * nc..][..nc]);
                 for j in 0..nc {
-                    let w = x[j] * inv_s[j];
-                    pg[i * nc + j] = w * g[i * nc + j];
-                    pm[i * nc + j] = w * m[i * nc + j];
+                    pi[j] = w[j] * gi[j];
                 }
             }
+            mul_abt(pg, m, nc, a);
+            let r = 1.0 / total;
             for i in 0..nc {
-                let (pi, qi) = (&pg[i * nc..(i + 1) * nc], &pm[i * nc..(i + 1) * nc]);
                 for k in i..nc {
-                    let v = m[k * nc + i] + m[i * nc + k]
-                        - dot(pi, &m[k * nc..(k + 1) * nc])
-                        - dot(qi, &g[k * nc..(k + 1) * nc]);
-                    let v = v / total;
-                    dn[i * nc + k] = v;
-                    dn[k * nc + i] = v;
+                    let (ik, ki) = (i * nc + k, k * nc + i);
+                    let val = (m[ki] + m[ik] - a[ik] - a[ki]) * r;
+                    dn[ik] = val;
+                    dn[ki] = val;
                 }
             }
         }
-        let mut dge = 0.0;
         if need.temperature {
+            // ∂ln γ_i/∂T = ∂ε_i/∂T + Σ_j x_j [∂G_ij/∂T (τ_ij − ε_j) + G_ij (∂τ_ij/∂T − ∂ε_j/∂T)
+            // − M_ij ∂S_j/∂T]/S_j, as four row sums with the weights w_j, w_j ε_j, w_j ∂ε_j/∂T
+            // and w_j ∂S_j/∂T.
             for i in 0..nc {
-                let (mut ds, mut dc) = (0.0, 0.0);
-                for k in 0..nc {
-                    let idx = k * nc + i;
-                    ds += x[k] * dg[idx];
-                    dc += x[k] * (dtau[idx] * g[idx] + tau[idx] * dg[idx]);
+                let (d1, d2, d3, d4) = (
+                    &dtg[i * nc..][..nc],
+                    &dg[i * nc..][..nc],
+                    &g[i * nc..][..nc],
+                    &m[i * nc..][..nc],
+                );
+                let mut acc = [0.0f64; 2];
+                let h = nc / 2;
+                for q in 0..h {
+                    for l in 0..2 {
+                        let j = 2 * q + l;
+                        acc[l] += w[j] * d1[j] - u[j] * d2[j] - v[j] * d3[j] - z[j] * d4[j];
+                    }
                 }
-                dsum_g[i] = ds;
-                deps[i] = (dc - eps[i] * ds) * inv_s[i];
-                dge += x[i] * deps[i];
-            }
-            for i in 0..nc {
-                let mut v = deps[i];
-                for j in 0..nc {
-                    let idx = i * nc + j;
-                    v += x[j] * (dg[idx] * (tau[idx] - eps[j]) + g[idx] * (dtau[idx] - deps[j]) - m[idx] * dsum_g[j])
-                        / sum_g[j];
+                let mut val = deps[i] + acc[0] + acc[1];
+                if nc % 2 == 1 {
+                    let j = nc - 1;
+                    val += w[j] * d1[j] - u[j] * d2[j] - v[j] * d3[j] - z[j] * d4[j];
                 }
-                dt[i] = v;
+                dt[i] = val;
             }
         }
         finish(t, need, dge, out)
@@ -407,6 +396,133 @@ mod tests {
             if need.temperature {
                 assert_eq!(shared.dt, f.dt);
                 assert_eq!(shared.dn, f.dn);
+            }
+        }
+    }
+
+    /// The multicomponent NRTL ln γ (Renon & Prausnitz 1968, *AIChE J.* 14:135),
+    ///
+    /// ln γ_i = Σ_j τ_ji G_ji x_j / Σ_k G_ki x_k
+    ///        + Σ_j [x_j G_ij / Σ_k G_kj x_k] (τ_ij − Σ_m x_m τ_mj G_mj / Σ_k G_kj x_k),
+    ///
+    /// and its derivatives by the same formulas differentiated term by term, evaluated
+    /// directly (no cached or rearranged sums): the reference for the fast evaluation.
+    fn direct(m: &Nrtl, t: f64, x: &[f64]) -> (Vec<f64>, Vec<f64>, Vec<f64>) {
+        let nc = x.len();
+        let ta = |i: usize, j: usize| m.tau_alpha(t, i, j);
+        let tau = |i, j| ta(i, j).0;
+        let g = |i, j| {
+            let (tt, al) = ta(i, j);
+            (-al * tt).exp()
+        };
+        let s = |j: usize| (0..nc).map(|k| g(k, j) * x[k]).sum::<f64>();
+        let eps = |j: usize| (0..nc).map(|k| tau(k, j) * g(k, j) * x[k]).sum::<f64>() / s(j);
+        let mm = |i: usize, j: usize| g(i, j) * (tau(i, j) - eps(j)) / s(j);
+        let lng = |i: usize| eps(i) + (0..nc).map(|j| x[j] * mm(i, j)).sum::<f64>();
+        let ln_gamma: Vec<f64> = (0..nc).map(lng).collect();
+        let mut dx = vec![0.0; nc * nc];
+        for i in 0..nc {
+            for k in 0..nc {
+                let mut v = mm(k, i) + mm(i, k);
+                for j in 0..nc {
+                    v -= x[j] * (g(i, j) * mm(k, j) + g(k, j) * mm(i, j)) / s(j);
+                }
+                dx[i * nc + k] = v;
+            }
+        }
+        // T-derivatives by the chain rule on τ(T) and α(T).
+        let p = m.params();
+        let dtau = |i: usize, j: usize| -p.b[i][j] / (t * t) + p.e[i][j] / t + p.f[i][j];
+        let dg = |i: usize, j: usize| {
+            let d = if p.d.is_empty() { 0.0 } else { p.d[i][j] };
+            -(d * tau(i, j) + ta(i, j).1 * dtau(i, j)) * g(i, j)
+        };
+        let ds = |j: usize| (0..nc).map(|k| dg(k, j) * x[k]).sum::<f64>();
+        let deps = |j: usize| {
+            (0..nc)
+                .map(|k| x[k] * (dtau(k, j) * g(k, j) + tau(k, j) * dg(k, j)))
+                .sum::<f64>()
+                / s(j)
+                - eps(j) * ds(j) / s(j)
+        };
+        let dt: Vec<f64> = (0..nc)
+            .map(|i| {
+                deps(i)
+                    + (0..nc)
+                        .map(|j| {
+                            x[j] * (dg(i, j) * (tau(i, j) - eps(j)) + g(i, j) * (dtau(i, j) - deps(j))
+                                - mm(i, j) * ds(j))
+                                / s(j)
+                        })
+                        .sum::<f64>()
+            })
+            .collect();
+        (ln_gamma, dx, dt)
+    }
+
+    #[test]
+    fn nrtl_fast_evaluation_matches_direct_formulas() {
+        // Ten components with invented parameters using every temperature term, and the
+        // ternary; odd and even sizes exercise every branch of the blocked sums.
+        let nc = 10;
+        let mat = |f: &dyn Fn(usize, usize) -> f64| -> Vec<Vec<f64>> {
+            (0..nc)
+                .map(|i| (0..nc).map(|j| if i == j { 0.0 } else { f(i, j) }).collect())
+                .collect()
+        };
+        let ten = Nrtl::new(NrtlParams {
+            components: (0..nc).map(|i| format!("c{i}")).collect(),
+            a: mat(&|i, j| 0.1 * ((i * 7 + j * 3) % 5) as f64 - 0.2),
+            b: mat(&|i, j| 50.0 * ((i * 3 + j * 5) % 9) as f64 - 100.0),
+            c: mat(&|i, j| 0.2 + 0.02 * ((i + j) % 5) as f64),
+            d: mat(&|_, _| 1e-4),
+            e: mat(&|i, j| 0.01 * ((i + 2 * j) % 3) as f64),
+            f: mat(&|i, j| 1e-5 * ((2 * i + j) % 4) as f64),
+            t_min: 250.0,
+            t_max: 450.0,
+        })
+        .unwrap();
+        let nine = Nrtl::new(NrtlParams {
+            components: (0..9).map(|i| format!("c{i}")).collect(),
+            a: ten.params().a[..9].iter().map(|r| r[..9].to_vec()).collect(),
+            b: ten.params().b[..9].iter().map(|r| r[..9].to_vec()).collect(),
+            c: ten.params().c[..9].iter().map(|r| r[..9].to_vec()).collect(),
+            d: vec![],
+            e: ten.params().e[..9].iter().map(|r| r[..9].to_vec()).collect(),
+            f: vec![],
+            t_min: 250.0,
+            t_max: 450.0,
+        })
+        .unwrap();
+        let close = |a: f64, b: f64, scale: f64| (a - b).abs() <= 1e-13 * scale;
+        for (m, t) in [(&ten, 330.0), (&ten, 260.0), (&nine, 400.0), (&ternary(), 300.0)] {
+            let nc = m.num_components();
+            for shift in [0usize, 3] {
+                let n: Vec<f64> = (0..nc).map(|i| 0.05 + 0.01 * ((i + shift) % nc) as f64).collect();
+                let total: f64 = n.iter().sum();
+                let x: Vec<f64> = n.iter().map(|v| v / total).collect();
+                let mut out = ExcessDerivs::new(nc);
+                m.excess(t, &n, Need::ALL, &mut out).unwrap();
+                let (lg, dx, dt) = direct(m, t, &x);
+                let sc = |v: &[f64]| v.iter().fold(0.0f64, |a, b| a.max(b.abs()));
+                let (sl, sd, st) = (sc(&lg), sc(&dx), sc(&dt));
+                for i in 0..nc {
+                    assert!(
+                        close(out.ln_gamma[i], lg[i], sl),
+                        "ln γ{i}: {} vs {}",
+                        out.ln_gamma[i],
+                        lg[i]
+                    );
+                    assert!(close(out.dt[i], dt[i], st), "∂ln γ{i}/∂T: {} vs {}", out.dt[i], dt[i]);
+                    for k in 0..nc {
+                        let a = out.dn[i * nc + k] * total;
+                        assert!(
+                            close(a, dx[i * nc + k], sd),
+                            "∂ln γ{i}/∂x{k}: {a} vs {}",
+                            dx[i * nc + k]
+                        );
+                    }
+                }
             }
         }
     }

@@ -2,7 +2,9 @@
 //! 21:1086–1099) with its embedded parameter table (`core/data/unifac.toml`).
 
 use super::uniquac::combinatorial;
-use super::{ExcessDerivs, ExcessGibbs, Residual, check_call, check_names, check_range, finish, scratch};
+use super::{
+    ExcessDerivs, ExcessGibbs, ParamId, Residual, check_call, check_names, check_range, finish, mul_abt, scratch,
+};
 use crate::error::{Error, Result, num};
 use crate::model::Need;
 use serde::{Deserialize, Serialize};
@@ -409,6 +411,7 @@ pub struct Unifac {
     a: Vec<f64>,
     r: Vec<f64>,
     q: Vec<f64>,
+    id: ParamId,
 }
 
 impl Unifac {
@@ -533,6 +536,7 @@ impl Unifac {
             a,
             r,
             q,
+            id: ParamId::fresh(),
         })
     }
 
@@ -612,38 +616,47 @@ impl ExcessGibbs for Unifac {
             scratch: store,
             ..
         } = out;
-        let s = scratch(store, 3 * ng * ng + 2 * nc * ng + 5 * ng + nc);
+        // Layout: a 3-value key of the cached temperature terms (model identity, T, whether
+        // the T-derivatives are included), Ψ, ∂Ψ/∂T, ln Γ_k^(i) and ∂ln Γ_k^(i)/∂T of the pure
+        // components, then per-call storage.
+        let s = scratch(
+            store,
+            3 + 3 * ng * ng + 3 * nc * ng + 3 * ng + nc + nc * nc + Residual::work_len(ng),
+        );
+        let (key, s) = s.split_at_mut(3);
         let (psi, s) = s.split_at_mut(ng * ng);
         let (dpsi, s) = s.split_at_mut(ng * ng);
-        let (dy, s) = s.split_at_mut(ng * ng);
         let (pure, s) = s.split_at_mut(nc * ng);
         let (dpure, s) = s.split_at_mut(nc * ng);
+        let (dy, s) = s.split_at_mut(ng * ng);
+        let (b, s) = s.split_at_mut(nc * ng);
+        let (d, s) = s.split_at_mut(nc * nc);
         let (y, s) = s.split_at_mut(ng);
         let (val, s) = s.split_at_mut(ng);
         let (dval, s) = s.split_at_mut(ng);
-        let (u, s) = s.split_at_mut(ng);
-        let (du, s) = s.split_at_mut(ng);
-        let (x, _) = s.split_at_mut(nc);
-        for k in 0..ng * ng {
-            let p = (-self.a[k] / t).exp();
-            psi[k] = p;
-            dpsi[k] = p * self.a[k] / (t * t);
-        }
-        // ln Γ_k^(i) of the pure components (and T-derivatives).
-        for i in 0..nc {
-            let kernel = Residual {
-                w: &self.qk,
-                y: &self.nu[i * ng..(i + 1) * ng],
-                p: psi,
-                dp: Some(dpsi),
-            };
-            kernel.eval(
-                &mut pure[i * ng..(i + 1) * ng],
-                None,
-                need.temperature.then_some(&mut dpure[i * ng..(i + 1) * ng]),
-                u,
-                du,
-            );
+        let (x, work) = s.split_at_mut(nc);
+        if !self.id.cached(key, t, need.temperature) {
+            for k in 0..ng * ng {
+                let p = (-self.a[k] / t).exp();
+                psi[k] = p;
+                dpsi[k] = p * self.a[k] / (t * t);
+            }
+            // ln Γ_k^(i) of the pure components (and T-derivatives): functions of T only.
+            for i in 0..nc {
+                let kernel = Residual {
+                    w: &self.qk,
+                    y: &self.nu[i * ng..(i + 1) * ng],
+                    p: psi,
+                    dp: Some(dpsi),
+                };
+                kernel.eval(
+                    &mut pure[i * ng..(i + 1) * ng],
+                    None,
+                    need.temperature.then_some(&mut dpure[i * ng..(i + 1) * ng]),
+                    work,
+                );
+            }
+            self.id.store(key, t, need.temperature);
         }
         // Group amounts of the mixture per mol of mixture, y_k = Σ_i ν_ki x_i.
         for i in 0..nc {
@@ -666,8 +679,7 @@ impl ExcessGibbs for Unifac {
             val,
             need.composition.then_some(&mut *dy),
             need.temperature.then_some(&mut *dval),
-            u,
-            du,
+            work,
         );
         if need.composition {
             dn[..nc * nc].iter_mut().for_each(|v| *v = 0.0);
@@ -700,20 +712,13 @@ impl ExcessGibbs for Unifac {
         }
         *g_excess = ge;
         if need.composition {
-            // ∂ln γ_i^R/∂n_j = Σ_k Σ_l ν_ki (∂ln Γ_k/∂y_l) ν_lj / n_T.
+            // ∂ln γ_i^R/∂n_j = Σ_k Σ_l ν_ki (∂ln Γ_k/∂y_l) ν_lj / n_T, as (ν D) νᵀ with
+            // D = ∂ln Γ/∂y symmetric, so that ν D = ν Dᵀ.
+            mul_abt(&self.nu, dy, ng, b);
+            mul_abt(b, &self.nu, ng, d);
             for i in 0..nc {
                 for j in i..nc {
-                    let mut v = 0.0;
-                    for k in 0..ng {
-                        let ck = self.nu[i * ng + k];
-                        if ck == 0.0 {
-                            continue;
-                        }
-                        for l in 0..ng {
-                            v += ck * dy[k * ng + l] * self.nu[j * ng + l];
-                        }
-                    }
-                    let c = (dn[i * nc + j] + v) / total;
+                    let c = (dn[i * nc + j] + d[i * nc + j]) / total;
                     dn[i * nc + j] = c;
                     dn[j * nc + i] = c;
                 }

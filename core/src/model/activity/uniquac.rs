@@ -1,8 +1,8 @@
 //! The UNIQUAC model (Abrams & Prausnitz 1975, *AIChE J.* 21:116–128).
 
 use super::{
-    ExcessDerivs, ExcessGibbs, Residual, check_call, check_names, check_range, finish, positive_vector, rows, scratch,
-    square,
+    ExcessDerivs, ExcessGibbs, ParamId, Residual, check_call, check_names, check_range, finish, positive_vector, rows,
+    scratch, square,
 };
 use crate::error::{Error, Result};
 use crate::model::Need;
@@ -68,6 +68,7 @@ pub struct Uniquac {
     c: Vec<f64>,
     d: Vec<f64>,
     t_range: (f64, f64),
+    id: ParamId,
 }
 
 impl Uniquac {
@@ -104,6 +105,7 @@ impl Uniquac {
             d: square("UNIQUAC d", &p.d, nc, true)?,
             t_range: (p.t_min, p.t_max),
             names: p.components,
+            id: ParamId::fresh(),
         })
     }
 
@@ -200,19 +202,25 @@ impl ExcessGibbs for Uniquac {
             scratch: store,
             ..
         } = out;
-        let s = scratch(store, 3 * nn + 4 * nc);
+        // Layout: a 3-value key of the cached temperature terms (model identity, T, whether
+        // the T-derivatives are included), τ, ∂τ/∂T, then per-call storage.
+        let s = scratch(store, 3 + 3 * nn + 2 * nc + Residual::work_len(nc));
+        let (key, s) = s.split_at_mut(3);
         let (tau, s) = s.split_at_mut(nn);
         let (dtau, s) = s.split_at_mut(nn);
         let (dres, s) = s.split_at_mut(nn);
         let (x, s) = s.split_at_mut(nc);
-        let (u, s) = s.split_at_mut(nc);
-        let (du, s) = s.split_at_mut(nc);
-        let (res, _) = s.split_at_mut(nc);
-        let ln_t = t.ln();
-        for k in 0..nn {
-            let v = (self.a[k] + self.b[k] / t + self.c[k] * ln_t + self.d[k] * t).exp();
-            tau[k] = v;
-            dtau[k] = v * (-self.b[k] / (t * t) + self.c[k] / t + self.d[k]);
+        let (res, work) = s.split_at_mut(nc);
+        if !self.id.cached(key, t, need.temperature) {
+            let ln_t = t.ln();
+            for k in 0..nn {
+                let v = (self.a[k] + self.b[k] / t + self.c[k] * ln_t + self.d[k] * t).exp();
+                tau[k] = v;
+                if need.temperature {
+                    dtau[k] = v * (-self.b[k] / (t * t) + self.c[k] / t + self.d[k]);
+                }
+            }
+            self.id.store(key, t, need.temperature);
         }
         for i in 0..nc {
             x[i] = n[i] / total;
@@ -231,8 +239,7 @@ impl ExcessGibbs for Uniquac {
             res,
             need.composition.then_some(&mut *dres),
             need.temperature.then_some(&mut dt[..nc]),
-            u,
-            du,
+            work,
         );
         let mut ge = 0.0;
         let mut dge = 0.0;

@@ -1,7 +1,8 @@
 //! The Wilson model (Wilson 1964, *J. Am. Chem. Soc.* 86:127–130).
 
 use super::{
-    ExcessDerivs, ExcessGibbs, check_call, check_names, check_range, finish, positive_vector, rows, scratch, square,
+    ExcessDerivs, ExcessGibbs, ParamId, check_call, check_names, check_range, dot, finish, mul_abt, positive_vector,
+    rows, scratch, square,
 };
 use crate::error::{Error, Result};
 use crate::model::Need;
@@ -56,6 +57,7 @@ pub struct Wilson {
     c: Vec<f64>,
     d: Vec<f64>,
     t_range: (f64, f64),
+    id: ParamId,
 }
 
 impl Wilson {
@@ -81,6 +83,7 @@ impl Wilson {
             d: square("Wilson d", &p.d, nc, true)?,
             t_range: (p.t_min, p.t_max),
             names: p.components,
+            id: ParamId::fresh(),
         })
     }
 
@@ -149,54 +152,63 @@ impl ExcessGibbs for Wilson {
             scratch: store,
             ..
         } = out;
-        let s = scratch(store, 2 * nn + 4 * nc);
+        // Layout: a 3-value key of the cached temperature terms (model identity, T, whether
+        // the T-derivatives are included), Λ, its transpose, ∂Λ/∂T, then per-call storage.
+        let s = scratch(store, 3 + 5 * nn + 4 * nc);
+        let (key, s) = s.split_at_mut(3);
         let (lam, s) = s.split_at_mut(nn);
+        let (lamt, s) = s.split_at_mut(nn);
         let (dlam, s) = s.split_at_mut(nn);
+        let (pc, s) = s.split_at_mut(nn);
+        let (prod, s) = s.split_at_mut(nn);
         let (x, s) = s.split_at_mut(nc);
         let (sum, s) = s.split_at_mut(nc);
         let (dsum, s) = s.split_at_mut(nc);
         let (r, _) = s.split_at_mut(nc);
-        let ln_t = t.ln();
-        for i in 0..nc {
-            x[i] = n[i] / total;
-            for j in 0..nc {
-                let k = i * nc + j;
-                let l = self.volumes[j] / self.volumes[i]
-                    * (-(self.a[k] + self.b[k] / t + self.c[k] * ln_t + self.d[k] * t)).exp();
-                lam[k] = l;
-                if need.temperature {
-                    dlam[k] = -l * (-self.b[k] / (t * t) + self.c[k] / t + self.d[k]);
+        if !self.id.cached(key, t, need.temperature) {
+            let ln_t = t.ln();
+            for i in 0..nc {
+                for j in 0..nc {
+                    let k = i * nc + j;
+                    let l = self.volumes[j] / self.volumes[i]
+                        * (-(self.a[k] + self.b[k] / t + self.c[k] * ln_t + self.d[k] * t)).exp();
+                    lam[k] = l;
+                    lamt[j * nc + i] = l;
+                    if need.temperature {
+                        dlam[k] = -l * (-self.b[k] / (t * t) + self.c[k] / t + self.d[k]);
+                    }
                 }
             }
+            self.id.store(key, t, need.temperature);
+        }
+        for i in 0..nc {
+            x[i] = n[i] / total;
         }
         // S_i = Σ_j x_j Λ_ij; r_k = x_k/S_k.
         let mut ge = 0.0;
         for i in 0..nc {
-            let mut v = 0.0;
-            for j in 0..nc {
-                v += x[j] * lam[i * nc + j];
-            }
+            let v = dot(x, &lam[i * nc..][..nc]);
             sum[i] = v;
             r[i] = x[i] / v;
             ge -= x[i] * v.ln();
         }
         *g_excess = ge;
         for i in 0..nc {
-            let mut v = 1.0 - sum[i].ln();
-            for k in 0..nc {
-                v -= r[k] * lam[k * nc + i];
-            }
-            ln_gamma[i] = v;
+            ln_gamma[i] = 1.0 - sum[i].ln() - dot(r, &lamt[i * nc..][..nc]);
         }
         if need.composition {
-            // n_T ∂ln γ_i/∂n_j = 1 − Λ_ij/S_i − Λ_ji/S_j + Σ_k x_k Λ_ki Λ_kj/S_k².
+            // n_T ∂ln γ_i/∂n_j = 1 − Λ_ij/S_i − Λ_ji/S_j + Σ_k x_k Λ_ki Λ_kj/S_k², the sum as
+            // the product (Λᵀ C) Λ with C = diag(x_k/S_k²).
+            for i in 0..nc {
+                let (ci, li) = (&mut pc[i * nc..][..nc], &lamt[i * nc..][..nc]);
+                for k in 0..nc {
+                    ci[k] = li[k] * (r[k] / sum[k]);
+                }
+            }
+            mul_abt(pc, lamt, nc, prod);
             for i in 0..nc {
                 for j in i..nc {
-                    let mut v = 1.0 - lam[i * nc + j] / sum[i] - lam[j * nc + i] / sum[j];
-                    for k in 0..nc {
-                        v += r[k] / sum[k] * lam[k * nc + i] * lam[k * nc + j];
-                    }
-                    v /= total;
+                    let v = (1.0 - lam[i * nc + j] / sum[i] - lam[j * nc + i] / sum[j] + prod[i * nc + j]) / total;
                     dn[i * nc + j] = v;
                     dn[j * nc + i] = v;
                 }
@@ -205,10 +217,7 @@ impl ExcessGibbs for Wilson {
         let mut dge = 0.0;
         if need.temperature {
             for i in 0..nc {
-                let mut v = 0.0;
-                for j in 0..nc {
-                    v += x[j] * dlam[i * nc + j];
-                }
+                let v = dot(x, &dlam[i * nc..][..nc]);
                 dsum[i] = v;
                 dge -= x[i] * v / sum[i];
             }

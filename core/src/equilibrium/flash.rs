@@ -299,6 +299,12 @@ pub struct FlashContext {
     cert: StabilityResult,
     prev_lnk: Vec<f64>,
     prev_two_phase: bool,
+    /// Cholesky factor of the Newton Hessian at the split whose K-values are `prev_lnk`
+    /// (valid when `prev_factor_valid`), the first step of the next warm start.
+    prev_factor: Vec<f64>,
+    prev_factor_valid: bool,
+    /// Whether `ws.chol` holds a factor from the Newton iterations of the current split.
+    newton_factored: bool,
     /// The multiphase solver, whose phase set is this call's answer when `multi_used`.
     multi: Solver,
     multi_used: bool,
@@ -332,6 +338,8 @@ impl FlashContext {
         self.best = Split::new(nc);
         self.prev_lnk = vec![0.0; nc];
         self.prev_two_phase = false;
+        self.prev_factor = vec![0.0; nc * nc];
+        self.prev_factor_valid = false;
         self.newton_v = vec![0.0; nc];
         self.newton_v0 = vec![0.0; nc];
         self.newton_l = vec![0.0; nc];
@@ -343,6 +351,7 @@ impl FlashContext {
     /// Forgets the previous solution, so the next call starts cold.
     pub fn reset(&mut self) {
         self.prev_two_phase = false;
+        self.prev_factor_valid = false;
     }
 
     /// The last result (valid after a successful call).
@@ -659,11 +668,13 @@ impl FlashContext {
         diag: &mut Diagnostics,
     ) -> Result<SplitOutcome> {
         let nc = self.nc;
+        self.newton_factored = false;
         if warm {
             if !self.rr_split() {
                 return Ok(SplitOutcome::Collapsed);
             }
-            return match self.newton(model, t, p, opts, diag)? {
+            let chord = self.prev_factor_valid;
+            return match self.newton_from(model, t, p, opts, chord, diag)? {
                 SplitOutcome::Converged => self.accept(),
                 other => Ok(other),
             };
@@ -767,6 +778,10 @@ impl FlashContext {
             return Ok(SplitOutcome::Collapsed);
         }
         self.prev_lnk.copy_from_slice(&self.ws.lnk);
+        self.prev_factor_valid = self.newton_factored;
+        if self.newton_factored {
+            self.prev_factor.copy_from_slice(&self.ws.chol);
+        }
         Ok(SplitOutcome::Converged)
     }
 
@@ -876,6 +891,23 @@ impl FlashContext {
         opts: &FlashOptions,
         diag: &mut Diagnostics,
     ) -> Result<SplitOutcome> {
+        self.newton_from(model, t, p, opts, false, diag)
+    }
+
+    /// As [`Self::newton`]; with `chord`, the first step is a chord step with the Hessian
+    /// factor of the previous call's converged split (`prev_factor`), so that the starting
+    /// point is evaluated without derivatives. A warm start at a nearby (T, p) begins so: the
+    /// step −H_prev⁻¹ g is the first-order predictor of the change of the solution, and a
+    /// step that does not lower G falls back to a full Newton step from the same point.
+    fn newton_from<M: FluidModel + ?Sized>(
+        &mut self,
+        model: &M,
+        t: f64,
+        p: f64,
+        opts: &FlashOptions,
+        chord_start: bool,
+        diag: &mut Diagnostics,
+    ) -> Result<SplitOutcome> {
         let nc = self.nc;
         if !(self.split.beta > 0.0 && self.split.omb > 0.0) {
             return Ok(SplitOutcome::NotConverged);
@@ -886,8 +918,13 @@ impl FlashContext {
         }
         self.split.root_x = RootChoice::Stable;
         self.split.root_y = RootChoice::Stable;
-        if !self.eval_newton(model, t, p)? {
+        let need = if chord_start { Need::VALUES } else { Need::COMPOSITION };
+        if !self.eval_newton_with(model, t, p, need)? {
             return Ok(SplitOutcome::NotConverged);
+        }
+        if chord_start {
+            self.ws.chol.copy_from_slice(&self.prev_factor);
+            self.newton_factored = true;
         }
         let set_lnk = |me: &mut Self| {
             for i in 0..me.nc {
@@ -904,7 +941,7 @@ impl FlashContext {
         // chord step: the previous Hessian's factor (still in `ws.chol`) with the new
         // gradient (a simplified Newton step; Kelley, "Iterative Methods for Linear and
         // Nonlinear Equations", SIAM 1995, §5.4, from memory).
-        let mut have_dn = true;
+        let mut have_dn = !chord_start;
         for _ in 0..opts.max_newton_iterations {
             let err0 = self.split.residual;
             if err0 < opts.tolerance {
@@ -930,27 +967,30 @@ impl FlashContext {
             } else {
                 let ws = &mut self.ws;
                 let s = &self.split;
-                let (beta, omb) = (s.beta, s.omb);
+                // Only the lower triangle: the factorisation reads no more.
+                let (ib, io) = (1.0 / s.beta, 1.0 / s.omb);
+                let c = ib + io;
                 for i in 0..nc {
-                    for j in 0..nc {
-                        ws.hess[i * nc + j] = if ws.z[i] > 0.0 && ws.z[j] > 0.0 {
-                            let mut h =
-                                s.phi_y.dn[i * nc + j] / beta + s.phi_x.dn[i * nc + j] / omb - 1.0 / beta - 1.0 / omb;
-                            if i == j {
-                                h += 1.0 / self.newton_v[i] + 1.0 / self.newton_l[i];
-                            }
-                            h
-                        } else if i == j {
-                            1.0
+                    let row = i * nc;
+                    let zi = ws.z[i] > 0.0;
+                    for j in 0..=i {
+                        ws.hess[row + j] = if zi && ws.z[j] > 0.0 {
+                            s.phi_y.dn[row + j] * ib + s.phi_x.dn[row + j] * io - c
                         } else {
                             0.0
                         };
                     }
+                    ws.hess[row + i] += if zi {
+                        1.0 / self.newton_v[i] + 1.0 / self.newton_l[i]
+                    } else {
+                        1.0
+                    };
                 }
                 ws.step.copy_from_slice(&ws.rhs);
                 if shifted_cholesky_solve(&ws.hess, nc, &mut ws.step, &mut ws.chol, 0.0).is_none() {
                     return Ok(SplitOutcome::NotConverged);
                 }
+                self.newton_factored = true;
             }
             // Quadratic regime (common practice, no source: a residual below 1e-3 before a
             // Newton step): the candidate is evaluated without derivatives.
@@ -1016,7 +1056,7 @@ impl FlashContext {
             }
             // A full step that barely reduced the residual means a long, nearly flat valley of
             // G (close to a critical point): expand the step while G keeps falling.
-            if alpha == 1.0 && self.split.residual > 0.5 * err0 {
+            if !chord && alpha == 1.0 && self.split.residual > 0.5 * err0 {
                 let mut best_alpha = 1.0;
                 let mut best_g = self.split.gibbs;
                 let mut a = 2.0;

@@ -26,7 +26,7 @@
 use super::EquilibriumWork;
 use super::nphase::{Plan, Solver};
 use super::rachford_rice;
-use super::stability::{StabilityOptions, StabilityResult, stability_with};
+use super::stability::{StabilityOptions, StabilityResult, stability_with, stability_with_known};
 use crate::error::{Error, Result, check, num};
 use crate::model::{FluidModel, LnPhi, Need, PhaseKind, RootChoice};
 use crate::numerics::linalg::{cholesky_solve, shifted_cholesky_solve};
@@ -506,7 +506,8 @@ impl FlashContext {
         let nc = self.nc;
         for attempt in 0..2 {
             let x = self.best.x.clone();
-            self.certificate_of(model, t, p, &x, opts, diag)?;
+            let y = self.best.y.clone();
+            self.certificate_of(model, t, p, &x, &y, opts, diag)?;
             if self.cert.stable || attempt == 1 {
                 if !self.cert.stable && opts.max_phases >= 3 {
                     return self.add_third_phase(model, t, p, opts, diag);
@@ -604,13 +605,16 @@ impl FlashContext {
     }
 
     /// The stability test of phase composition `x` into `self.cert` (stopping at the first
-    /// negative stationary point), recorded as the certificate in `diag`.
+    /// negative stationary point), recorded as the certificate in `diag`; `y` is the other
+    /// phase of the split, whose neighbourhood the test's trials need not explore again.
+    #[allow(clippy::too_many_arguments)]
     fn certificate_of<M: FluidModel + ?Sized>(
         &mut self,
         model: &M,
         t: f64,
         p: f64,
         x: &[f64],
+        y: &[f64],
         opts: &FlashOptions,
         diag: &mut Diagnostics,
     ) -> Result<()> {
@@ -618,7 +622,7 @@ impl FlashContext {
             early_exit: true,
             ..opts.stability
         };
-        stability_with(model, t, p, x, &sopts, &[], &mut self.ws, &mut self.cert)?;
+        stability_with_known(model, t, p, x, &sopts, y, &mut self.ws, &mut self.cert)?;
         diag.certificate_iterations += self.cert.iterations;
         diag.certificate = Some(self.cert.min_tpd);
         Ok(())

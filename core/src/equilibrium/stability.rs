@@ -429,6 +429,10 @@ fn run_trial<M: FluidModel + ?Sized>(
     // Whether ws.phi_b already holds ln φ (and, if `have_dn`, its derivatives) at ws.w.
     let mut evaluated = false;
     let mut have_dn = false;
+    // ln W_i in `ws.k`, kept with W (a successive-substitution step gives it exactly).
+    for i in 0..nc {
+        ws.k[i] = if ws.sz[i] > 0.0 { ws.w[i].ln() } else { 0.0 };
+    }
     while iterations < opts.max_iterations {
         iterations += 1;
         let newton = iterations > opts.ss_steps;
@@ -443,7 +447,7 @@ fn run_trial<M: FluidModel + ?Sized>(
         let (mut err, mut tm, mut sw, mut bt, mut bk) = (0.0f64, 1.0, 0.0, 0.0, 0.0);
         for i in 0..nc {
             if ws.sz[i] > 0.0 {
-                let lw = ws.w[i].ln();
+                let lw = ws.k[i];
                 let h = lw + ws.phi_b.ln_phi[i] - ws.d[i];
                 ws.g[i] = h;
                 err = err.max(h.abs());
@@ -488,7 +492,8 @@ fn run_trial<M: FluidModel + ?Sized>(
         if !newton {
             for i in 0..nc {
                 if ws.sz[i] > 0.0 {
-                    ws.w[i] = (ws.d[i] - ws.phi_b.ln_phi[i]).exp();
+                    ws.k[i] = ws.d[i] - ws.phi_b.ln_phi[i];
+                    ws.w[i] = ws.k[i].exp();
                 }
             }
             tm_prev = tm;
@@ -541,7 +546,8 @@ fn run_trial<M: FluidModel + ?Sized>(
             let mut tm_new = 1.0;
             for i in 0..nc {
                 if ws.sz[i] > 0.0 {
-                    tm_new += ws.w[i] * (ws.w[i].ln() + ws.phi_a.ln_phi[i] - ws.d[i] - 1.0);
+                    ws.k[i] = ws.w[i].ln();
+                    tm_new += ws.w[i] * (ws.k[i] + ws.phi_a.ln_phi[i] - ws.d[i] - 1.0);
                 }
             }
             if tm_new.is_finite() && tm_new <= tm + 1e-12 * tm.abs().max(1.0) {
@@ -558,7 +564,8 @@ fn run_trial<M: FluidModel + ?Sized>(
             // still holds ln φ there); SS never increases tm.
             for i in 0..nc {
                 if ws.sz[i] > 0.0 {
-                    ws.w[i] = (ws.d[i] - ws.phi_b.ln_phi[i]).exp();
+                    ws.k[i] = ws.d[i] - ws.phi_b.ln_phi[i];
+                    ws.w[i] = ws.k[i].exp();
                 }
             }
         }

@@ -303,6 +303,10 @@ pub struct FlashContext {
     /// (valid when `prev_factor_valid`), the first step of the next warm start.
     prev_factor: Vec<f64>,
     prev_factor_valid: bool,
+    /// The split whose K-values are `prev_lnk` (β, x, y in `prev_split`) and its feed: a warm
+    /// start with the same feed begins from it without a Rachford–Rice solve.
+    prev_split: Split,
+    prev_z: Vec<f64>,
     /// Whether `ws.chol` holds a factor from the Newton iterations of the current split.
     newton_factored: bool,
     /// The multiphase solver, whose phase set is this call's answer when `multi_used`.
@@ -340,6 +344,8 @@ impl FlashContext {
         self.prev_two_phase = false;
         self.prev_factor = vec![0.0; nc * nc];
         self.prev_factor_valid = false;
+        self.prev_split = Split::new(nc);
+        self.prev_z = vec![0.0; nc];
         self.newton_v = vec![0.0; nc];
         self.newton_v0 = vec![0.0; nc];
         self.newton_l = vec![0.0; nc];
@@ -674,7 +680,14 @@ impl FlashContext {
         let nc = self.nc;
         self.newton_factored = false;
         if warm {
-            if !self.rr_split() {
+            if self.prev_z == self.ws.z {
+                // The Rachford–Rice solution of `prev_lnk` for this feed is the previous split.
+                let (s, q) = (&mut self.split, &self.prev_split);
+                s.beta = q.beta;
+                s.omb = q.omb;
+                s.x.copy_from_slice(&q.x);
+                s.y.copy_from_slice(&q.y);
+            } else if !self.rr_split() {
                 return Ok(SplitOutcome::Collapsed);
             }
             let chord = self.prev_factor_valid;
@@ -782,6 +795,12 @@ impl FlashContext {
             return Ok(SplitOutcome::Collapsed);
         }
         self.prev_lnk.copy_from_slice(&self.ws.lnk);
+        self.prev_z.copy_from_slice(&self.ws.z);
+        let (q, s) = (&mut self.prev_split, &self.split);
+        q.beta = s.beta;
+        q.omb = s.omb;
+        q.x.copy_from_slice(&s.x);
+        q.y.copy_from_slice(&s.y);
         self.prev_factor_valid = self.newton_factored;
         if self.newton_factored {
             self.prev_factor.copy_from_slice(&self.ws.chol);

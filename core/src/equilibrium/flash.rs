@@ -21,7 +21,10 @@
 //!
 //! A [`FlashContext`] keeps the workspaces and the previous solution: its warm start begins
 //! from the previous K-values and skips the feed stability test (simulators' time-stepping
-//! use), falling back to the cold path whenever the warm split collapses.
+//! use), falling back to the cold path whenever the warm split collapses. Its first step reuses
+//! the Cholesky factor of the previous solution's Hessian (a chord step, so the starting point
+//! needs no composition derivatives), and the certificate's trials that return to the split's
+//! other phase are abandoned as trials returning to the phase under test are.
 
 use super::EquilibriumWork;
 use super::nphase::{Plan, Solver};

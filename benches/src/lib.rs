@@ -1,6 +1,9 @@
 //! Benchmark fixtures of tieline: the 10-component Peng–Robinson natural-gas mixture used by
 //! every benchmark, and its operating points (an invented composition, for benchmarking only).
 
+pub mod counting;
+pub mod reference_flash;
+
 use tieline::model::{CubicEos, CubicKind};
 use tieline::substance::DataBank;
 

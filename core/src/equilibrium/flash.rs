@@ -21,12 +21,15 @@
 //!
 //! A [`FlashContext`] keeps the workspaces and the previous solution: its warm start begins
 //! from the previous K-values and skips the feed stability test (simulators' time-stepping
-//! use), falling back to the cold path whenever the warm split collapses.
+//! use), falling back to the cold path whenever the warm split collapses. Its first step reuses
+//! the Cholesky factor of the previous solution's Hessian (a chord step, so the starting point
+//! needs no composition derivatives), and the certificate's trials that return to the split's
+//! other phase are abandoned as trials returning to the phase under test are.
 
 use super::EquilibriumWork;
 use super::nphase::{Plan, Solver};
 use super::rachford_rice;
-use super::stability::{StabilityOptions, StabilityResult, stability_with};
+use super::stability::{StabilityOptions, StabilityResult, stability_with, stability_with_known};
 use crate::error::{Error, Result, check, num};
 use crate::model::{FluidModel, LnPhi, Need, PhaseKind, RootChoice};
 use crate::numerics::linalg::{cholesky_solve, shifted_cholesky_solve};
@@ -299,6 +302,16 @@ pub struct FlashContext {
     cert: StabilityResult,
     prev_lnk: Vec<f64>,
     prev_two_phase: bool,
+    /// Cholesky factor of the Newton Hessian at the split whose K-values are `prev_lnk`
+    /// (valid when `prev_factor_valid`), the first step of the next warm start.
+    prev_factor: Vec<f64>,
+    prev_factor_valid: bool,
+    /// The split whose K-values are `prev_lnk` (β, x, y in `prev_split`) and its feed: a warm
+    /// start with the same feed begins from it without a Rachford–Rice solve.
+    prev_split: Split,
+    prev_z: Vec<f64>,
+    /// Whether `ws.chol` holds a factor from the Newton iterations of the current split.
+    newton_factored: bool,
     /// The multiphase solver, whose phase set is this call's answer when `multi_used`.
     multi: Solver,
     multi_used: bool,
@@ -332,6 +345,10 @@ impl FlashContext {
         self.best = Split::new(nc);
         self.prev_lnk = vec![0.0; nc];
         self.prev_two_phase = false;
+        self.prev_factor = vec![0.0; nc * nc];
+        self.prev_factor_valid = false;
+        self.prev_split = Split::new(nc);
+        self.prev_z = vec![0.0; nc];
         self.newton_v = vec![0.0; nc];
         self.newton_v0 = vec![0.0; nc];
         self.newton_l = vec![0.0; nc];
@@ -343,6 +360,7 @@ impl FlashContext {
     /// Forgets the previous solution, so the next call starts cold.
     pub fn reset(&mut self) {
         self.prev_two_phase = false;
+        self.prev_factor_valid = false;
     }
 
     /// The last result (valid after a successful call).
@@ -497,7 +515,8 @@ impl FlashContext {
         let nc = self.nc;
         for attempt in 0..2 {
             let x = self.best.x.clone();
-            self.certificate_of(model, t, p, &x, opts, diag)?;
+            let y = self.best.y.clone();
+            self.certificate_of(model, t, p, &x, &y, opts, diag)?;
             if self.cert.stable || attempt == 1 {
                 if !self.cert.stable && opts.max_phases >= 3 {
                     return self.add_third_phase(model, t, p, opts, diag);
@@ -595,13 +614,16 @@ impl FlashContext {
     }
 
     /// The stability test of phase composition `x` into `self.cert` (stopping at the first
-    /// negative stationary point), recorded as the certificate in `diag`.
+    /// negative stationary point), recorded as the certificate in `diag`; `y` is the other
+    /// phase of the split, whose neighbourhood the test's trials need not explore again.
+    #[allow(clippy::too_many_arguments)]
     fn certificate_of<M: FluidModel + ?Sized>(
         &mut self,
         model: &M,
         t: f64,
         p: f64,
         x: &[f64],
+        y: &[f64],
         opts: &FlashOptions,
         diag: &mut Diagnostics,
     ) -> Result<()> {
@@ -609,7 +631,7 @@ impl FlashContext {
             early_exit: true,
             ..opts.stability
         };
-        stability_with(model, t, p, x, &sopts, &[], &mut self.ws, &mut self.cert)?;
+        stability_with_known(model, t, p, x, &sopts, y, &mut self.ws, &mut self.cert)?;
         diag.certificate_iterations += self.cert.iterations;
         diag.certificate = Some(self.cert.min_tpd);
         Ok(())
@@ -659,11 +681,20 @@ impl FlashContext {
         diag: &mut Diagnostics,
     ) -> Result<SplitOutcome> {
         let nc = self.nc;
+        self.newton_factored = false;
         if warm {
-            if !self.rr_split() {
+            if self.prev_z == self.ws.z {
+                // The Rachford–Rice solution of `prev_lnk` for this feed is the previous split.
+                let (s, q) = (&mut self.split, &self.prev_split);
+                s.beta = q.beta;
+                s.omb = q.omb;
+                s.x.copy_from_slice(&q.x);
+                s.y.copy_from_slice(&q.y);
+            } else if !self.rr_split() {
                 return Ok(SplitOutcome::Collapsed);
             }
-            return match self.newton(model, t, p, opts, diag)? {
+            let chord = self.prev_factor_valid;
+            return match self.newton_from(model, t, p, opts, chord, diag)? {
                 SplitOutcome::Converged => self.accept(),
                 other => Ok(other),
             };
@@ -767,6 +798,16 @@ impl FlashContext {
             return Ok(SplitOutcome::Collapsed);
         }
         self.prev_lnk.copy_from_slice(&self.ws.lnk);
+        self.prev_z.copy_from_slice(&self.ws.z);
+        let (q, s) = (&mut self.prev_split, &self.split);
+        q.beta = s.beta;
+        q.omb = s.omb;
+        q.x.copy_from_slice(&s.x);
+        q.y.copy_from_slice(&s.y);
+        self.prev_factor_valid = self.newton_factored;
+        if self.newton_factored {
+            self.prev_factor.copy_from_slice(&self.ws.chol);
+        }
         Ok(SplitOutcome::Converged)
     }
 
@@ -876,6 +917,23 @@ impl FlashContext {
         opts: &FlashOptions,
         diag: &mut Diagnostics,
     ) -> Result<SplitOutcome> {
+        self.newton_from(model, t, p, opts, false, diag)
+    }
+
+    /// As [`Self::newton`]; with `chord`, the first step is a chord step with the Hessian
+    /// factor of the previous call's converged split (`prev_factor`), so that the starting
+    /// point is evaluated without derivatives. A warm start at a nearby (T, p) begins so: the
+    /// step −H_prev⁻¹ g is the first-order predictor of the change of the solution, and a
+    /// step that does not lower G falls back to a full Newton step from the same point.
+    fn newton_from<M: FluidModel + ?Sized>(
+        &mut self,
+        model: &M,
+        t: f64,
+        p: f64,
+        opts: &FlashOptions,
+        chord_start: bool,
+        diag: &mut Diagnostics,
+    ) -> Result<SplitOutcome> {
         let nc = self.nc;
         if !(self.split.beta > 0.0 && self.split.omb > 0.0) {
             return Ok(SplitOutcome::NotConverged);
@@ -886,8 +944,13 @@ impl FlashContext {
         }
         self.split.root_x = RootChoice::Stable;
         self.split.root_y = RootChoice::Stable;
-        if !self.eval_newton(model, t, p)? {
+        let need = if chord_start { Need::VALUES } else { Need::COMPOSITION };
+        if !self.eval_newton_with(model, t, p, need)? {
             return Ok(SplitOutcome::NotConverged);
+        }
+        if chord_start {
+            self.ws.chol.copy_from_slice(&self.prev_factor);
+            self.newton_factored = true;
         }
         let set_lnk = |me: &mut Self| {
             for i in 0..me.nc {
@@ -904,7 +967,7 @@ impl FlashContext {
         // chord step: the previous Hessian's factor (still in `ws.chol`) with the new
         // gradient (a simplified Newton step; Kelley, "Iterative Methods for Linear and
         // Nonlinear Equations", SIAM 1995, §5.4, from memory).
-        let mut have_dn = true;
+        let mut have_dn = !chord_start;
         for _ in 0..opts.max_newton_iterations {
             let err0 = self.split.residual;
             if err0 < opts.tolerance {
@@ -930,27 +993,30 @@ impl FlashContext {
             } else {
                 let ws = &mut self.ws;
                 let s = &self.split;
-                let (beta, omb) = (s.beta, s.omb);
+                // Only the lower triangle: the factorisation reads no more.
+                let (ib, io) = (1.0 / s.beta, 1.0 / s.omb);
+                let c = ib + io;
                 for i in 0..nc {
-                    for j in 0..nc {
-                        ws.hess[i * nc + j] = if ws.z[i] > 0.0 && ws.z[j] > 0.0 {
-                            let mut h =
-                                s.phi_y.dn[i * nc + j] / beta + s.phi_x.dn[i * nc + j] / omb - 1.0 / beta - 1.0 / omb;
-                            if i == j {
-                                h += 1.0 / self.newton_v[i] + 1.0 / self.newton_l[i];
-                            }
-                            h
-                        } else if i == j {
-                            1.0
+                    let row = i * nc;
+                    let zi = ws.z[i] > 0.0;
+                    for j in 0..=i {
+                        ws.hess[row + j] = if zi && ws.z[j] > 0.0 {
+                            s.phi_y.dn[row + j] * ib + s.phi_x.dn[row + j] * io - c
                         } else {
                             0.0
                         };
                     }
+                    ws.hess[row + i] += if zi {
+                        1.0 / self.newton_v[i] + 1.0 / self.newton_l[i]
+                    } else {
+                        1.0
+                    };
                 }
                 ws.step.copy_from_slice(&ws.rhs);
                 if shifted_cholesky_solve(&ws.hess, nc, &mut ws.step, &mut ws.chol, 0.0).is_none() {
                     return Ok(SplitOutcome::NotConverged);
                 }
+                self.newton_factored = true;
             }
             // Quadratic regime (common practice, no source: a residual below 1e-3 before a
             // Newton step): the candidate is evaluated without derivatives.
@@ -1016,7 +1082,7 @@ impl FlashContext {
             }
             // A full step that barely reduced the residual means a long, nearly flat valley of
             // G (close to a critical point): expand the step while G keeps falling.
-            if alpha == 1.0 && self.split.residual > 0.5 * err0 {
+            if !chord && alpha == 1.0 && self.split.residual > 0.5 * err0 {
                 let mut best_alpha = 1.0;
                 let mut best_g = self.split.gibbs;
                 let mut a = 2.0;

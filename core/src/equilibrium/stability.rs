@@ -97,7 +97,8 @@ pub struct StabilityResult {
     pub points: Vec<StationaryPoint>,
     /// Total iterations over all trials.
     pub iterations: usize,
-    /// Trials that collapsed to the trivial solution.
+    /// Trials that collapsed to the trivial solution (or, in the certificate of a flash, to
+    /// the other phase of the split, a known stationary point of zero distance).
     pub trivial_trials: usize,
     /// Trials that reached the iteration limit without converging (their last point is
     /// still used if it has negative tpd, which proves instability).
@@ -176,6 +177,43 @@ pub(crate) fn stability_on<M: FluidModel + ?Sized>(
     ws: &mut EquilibriumWork,
     res: &mut StabilityResult,
 ) -> Result<()> {
+    stability_impl(model, t, p, n, root, opts, extra_trials, None, ws, res)
+}
+
+/// As [`stability_with`], for a phase in equilibrium with another phase of mole fractions
+/// `known` (a converged split). That phase is a second stationary point of zero
+/// tangent-plane distance (tm = 1 − Σ y_i = 0 where ln y_i + ln φ_i(y) = d_i), so a trial that
+/// approaches it is abandoned by the test that abandons a trial approaching the phase itself
+/// (Michelsen & Mollerup 2007, ch. 10: near a zero of tm, tm ≈ β/2 with
+/// β = Σ (W_i − y_i)(ln W_i − ln y_i)), applied at y. The test's trials are those of `opts`;
+/// only the iterations that lead back to the split's own phase are saved.
+#[allow(clippy::too_many_arguments)]
+pub(crate) fn stability_with_known<M: FluidModel + ?Sized>(
+    model: &M,
+    t: f64,
+    p: f64,
+    n: &[f64],
+    opts: &StabilityOptions,
+    known: &[f64],
+    ws: &mut EquilibriumWork,
+    res: &mut StabilityResult,
+) -> Result<()> {
+    stability_impl(model, t, p, n, RootChoice::Stable, opts, &[], Some(known), ws, res)
+}
+
+#[allow(clippy::too_many_arguments)]
+fn stability_impl<M: FluidModel + ?Sized>(
+    model: &M,
+    t: f64,
+    p: f64,
+    n: &[f64],
+    root: RootChoice,
+    opts: &StabilityOptions,
+    extra_trials: &[&[f64]],
+    known: Option<&[f64]>,
+    ws: &mut EquilibriumWork,
+    res: &mut StabilityResult,
+) -> Result<()> {
     check::temperature(t)?;
     check::pressure(p)?;
     let nc = model.num_components();
@@ -198,6 +236,19 @@ pub(crate) fn stability_on<M: FluidModel + ?Sized>(
         };
     }
     model.estimate_ln_k(t, p, &mut ws.lnk);
+    // The known stationary point (mole fractions in `ws.y`, their logarithms in `ws.hist[2]`),
+    // used only if every component present in the phase is present in it.
+    let known = known.is_some_and(|y| {
+        let ok = (0..nc).all(|i| ws.sz[i] <= 0.0 || y[i] > 0.0);
+        if ok {
+            let sy: f64 = y.iter().sum();
+            for i in 0..nc {
+                ws.y[i] = y[i] / sy;
+                ws.hist[2][i] = if ws.y[i] > 0.0 { ws.y[i].ln() } else { 0.0 };
+            }
+        }
+        ok
+    });
     let trials = build_trials(model, opts, nc, ws);
     for k in 0..trials + extra_trials.len() {
         // Initial W for trial k.
@@ -249,7 +300,7 @@ pub(crate) fn stability_on<M: FluidModel + ?Sized>(
                 ws.w[i] = if ws.sz[i] > 0.0 { e[i].max(1e-12) } else { 0.0 };
             }
         }
-        let outcome = run_trial(model, t, p, root, opts, ws)?;
+        let outcome = run_trial(model, t, p, root, opts, known, ws)?;
         res.iterations += outcome.iterations;
         match outcome.status {
             TrialStatus::Trivial => res.trivial_trials += 1,
@@ -360,13 +411,15 @@ struct TrialOutcome {
     liquid_like: bool,
 }
 
-/// Runs one trial from `ws.w`; on return `ws.w` holds the final W.
+/// Runs one trial from `ws.w`; on return `ws.w` holds the final W. With `known`, `ws.y` and
+/// `ws.hist[2]` hold a second stationary point of zero distance and its logarithms.
 fn run_trial<M: FluidModel + ?Sized>(
     model: &M,
     t: f64,
     p: f64,
     root: RootChoice,
     opts: &StabilityOptions,
+    known: bool,
     ws: &mut EquilibriumWork,
 ) -> Result<TrialOutcome> {
     let nc = ws.sz.len();
@@ -376,6 +429,10 @@ fn run_trial<M: FluidModel + ?Sized>(
     // Whether ws.phi_b already holds ln φ (and, if `have_dn`, its derivatives) at ws.w.
     let mut evaluated = false;
     let mut have_dn = false;
+    // ln W_i in `ws.k`, kept with W (a successive-substitution step gives it exactly).
+    for i in 0..nc {
+        ws.k[i] = if ws.sz[i] > 0.0 { ws.w[i].ln() } else { 0.0 };
+    }
     while iterations < opts.max_iterations {
         iterations += 1;
         let newton = iterations > opts.ss_steps;
@@ -387,16 +444,19 @@ fn run_trial<M: FluidModel + ?Sized>(
         evaluated = false;
         let liquid_like = ws.phi_b.liquid_like;
         // Residuals h_i = ln W_i + ln φ_i(W) − d_i, and tm.
-        let (mut err, mut tm, mut sw, mut bt) = (0.0f64, 1.0, 0.0, 0.0);
+        let (mut err, mut tm, mut sw, mut bt, mut bk) = (0.0f64, 1.0, 0.0, 0.0, 0.0);
         for i in 0..nc {
             if ws.sz[i] > 0.0 {
-                let lw = ws.w[i].ln();
+                let lw = ws.k[i];
                 let h = lw + ws.phi_b.ln_phi[i] - ws.d[i];
                 ws.g[i] = h;
                 err = err.max(h.abs());
                 tm += ws.w[i] * (h - 1.0);
                 sw += ws.w[i];
                 bt += (ws.w[i] - ws.sz[i]) * (lw - ws.lnz[i]);
+                if known {
+                    bk += (ws.w[i] - ws.y[i]) * (lw - ws.hist[2][i]);
+                }
             } else {
                 ws.g[i] = 0.0;
             }
@@ -413,6 +473,13 @@ fn run_trial<M: FluidModel + ?Sized>(
         if bt < 1e-8 || (iterations > 1 && bt < 5e-3 && (2.0 * tm / bt - 1.0).abs() < 0.2) {
             return Ok(outcome(TrialStatus::Trivial));
         }
+        // The same test at the known stationary point y of zero distance.
+        if known
+            && err >= opts.tolerance
+            && (bk < 1e-8 || (iterations > 1 && bk < 5e-3 && (2.0 * tm / bk - 1.0).abs() < 0.2))
+        {
+            return Ok(outcome(TrialStatus::Trivial));
+        }
         if err < opts.tolerance {
             return Ok(outcome(TrialStatus::Converged));
         }
@@ -425,7 +492,8 @@ fn run_trial<M: FluidModel + ?Sized>(
         if !newton {
             for i in 0..nc {
                 if ws.sz[i] > 0.0 {
-                    ws.w[i] = (ws.d[i] - ws.phi_b.ln_phi[i]).exp();
+                    ws.k[i] = ws.d[i] - ws.phi_b.ln_phi[i];
+                    ws.w[i] = ws.k[i].exp();
                 }
             }
             tm_prev = tm;
@@ -478,7 +546,8 @@ fn run_trial<M: FluidModel + ?Sized>(
             let mut tm_new = 1.0;
             for i in 0..nc {
                 if ws.sz[i] > 0.0 {
-                    tm_new += ws.w[i] * (ws.w[i].ln() + ws.phi_a.ln_phi[i] - ws.d[i] - 1.0);
+                    ws.k[i] = ws.w[i].ln();
+                    tm_new += ws.w[i] * (ws.k[i] + ws.phi_a.ln_phi[i] - ws.d[i] - 1.0);
                 }
             }
             if tm_new.is_finite() && tm_new <= tm + 1e-12 * tm.abs().max(1.0) {
@@ -495,7 +564,8 @@ fn run_trial<M: FluidModel + ?Sized>(
             // still holds ln φ there); SS never increases tm.
             for i in 0..nc {
                 if ws.sz[i] > 0.0 {
-                    ws.w[i] = (ws.d[i] - ws.phi_b.ln_phi[i]).exp();
+                    ws.k[i] = ws.d[i] - ws.phi_b.ln_phi[i];
+                    ws.w[i] = ws.k[i].exp();
                 }
             }
         }

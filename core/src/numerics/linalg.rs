@@ -4,22 +4,21 @@
 /// In-place Cholesky factorisation A = L Lᵀ of a symmetric matrix (lower triangle used and
 /// overwritten by L). Returns `false` if A is not positive definite.
 pub fn cholesky(a: &mut [f64], n: usize) -> bool {
+    // Row slices instead of indices (no bounds checks in the inner products); the sums are
+    // taken in the same order as the textbook loops.
+    let a = &mut a[..n * n];
     for j in 0..n {
-        let mut d = a[j * n + j];
-        for k in 0..j {
-            d -= a[j * n + k] * a[j * n + k];
-        }
+        let (rowj, below) = a[j * n..].split_at_mut(n);
+        let d = rowj[..j].iter().fold(rowj[j], |d, l| d - l * l);
         if !(d > 0.0) || !d.is_finite() {
             return false;
         }
         let d = d.sqrt();
-        a[j * n + j] = d;
-        for i in j + 1..n {
-            let mut s = a[i * n + j];
-            for k in 0..j {
-                s -= a[i * n + k] * a[j * n + k];
-            }
-            a[i * n + j] = s / d;
+        rowj[j] = d;
+        let lj = &rowj[..j];
+        for row in below.chunks_exact_mut(n) {
+            let s = row[..j].iter().zip(lj).fold(row[j], |s, (a, b)| s - a * b);
+            row[j] = s / d;
         }
     }
     true
@@ -27,18 +26,17 @@ pub fn cholesky(a: &mut [f64], n: usize) -> bool {
 
 /// Solves L Lᵀ x = b in place given the factor from [`cholesky`].
 pub fn cholesky_solve(l: &[f64], n: usize, b: &mut [f64]) {
+    let l = &l[..n * n];
+    let b = &mut b[..n];
     for i in 0..n {
-        let mut s = b[i];
-        for k in 0..i {
-            s -= l[i * n + k] * b[k];
-        }
+        let row = &l[i * n..i * n + i];
+        let s = row.iter().zip(&b[..i]).fold(b[i], |s, (a, x)| s - a * x);
         b[i] = s / l[i * n + i];
     }
     for i in (0..n).rev() {
-        let mut s = b[i];
-        for k in i + 1..n {
-            s -= l[k * n + i] * b[k];
-        }
+        // Column i of L below the diagonal: l[k n + i] for k > i.
+        let col = l.get((i + 1) * n + i..).unwrap_or(&[]).iter().step_by(n);
+        let s = col.zip(&b[i + 1..]).fold(b[i], |s, (a, x)| s - a * x);
         b[i] = s / l[i * n + i];
     }
 }

@@ -178,6 +178,8 @@ pub(crate) struct Solver {
     roots: [RootChoice; MAXP],
     /// SS iterations a phase has spent at β = 0.
     absent: [usize; MAXP],
+    /// Whether `beta` holds guessed fractions (a new phase set), not those of a solve.
+    guessed_beta: bool,
     /// Phase amounts per mol of feed (Newton variables and their last accepted values).
     n: [Vec<f64>; MAXP],
     n0: [Vec<f64>; MAXP],
@@ -262,6 +264,7 @@ impl Solver {
             self.beta[k] = 1.0 / self.np as f64;
             self.absent[k] = 0;
         }
+        self.guessed_beta = true;
     }
 
     /// Adds a phase of composition `w` to the set (with fraction 0: the next multiphase
@@ -355,13 +358,26 @@ impl Solver {
                 self.a[i * MAXP + k] = (lo - self.lnphi[i * MAXP + k]).exp();
             }
         }
+        // Fractions of the last solve are a close start: Newton alone. Guessed fractions, or
+        // a phase just added (β = 0, not yet absent, given a small share), take exact
+        // coordinate sweeps first; a phase already at β = 0 starts there (Newton's active
+        // set frees it if Q falls).
         let mut beta = [0.0; MAXP];
+        let mut sweeps = if self.guessed_beta { 4 } else { 0 };
         for k in 0..np {
-            beta[k] = if self.beta[k] > 0.0 { self.beta[k] } else { 1e-3 };
+            beta[k] = if self.beta[k] > 0.0 {
+                self.beta[k]
+            } else if self.absent[k] == 0 {
+                sweeps = 4;
+                1e-3
+            } else {
+                0.0
+            };
         }
-        if !minimise_q(&self.z, &self.a, np, &mut beta) {
+        if !minimise_q(&self.z, &self.a, np, &mut beta, sweeps) {
             return false;
         }
+        self.guessed_beta = false;
         for i in 0..nc {
             if self.z[i] <= 0.0 {
                 continue;
@@ -1074,10 +1090,11 @@ impl Solver {
 }
 
 /// Minimises Q(β) = Σ_k β_k − Σ_i z_i ln E_i, E_i = Σ_k β_k a_ik, over β ≥ 0 (Michelsen 1994)
-/// for the first `np` phases: exact coordinate sweeps first, then Newton steps on the free
-/// fractions with an active set and backtracking (Q is convex). `a` is row-major nc × MAXP.
-/// Returns `false` if the minimum could not be found to 1e-6 in the gradient.
-fn minimise_q(z: &[f64], a: &[f64], np: usize, beta: &mut [f64; MAXP]) -> bool {
+/// for the first `np` phases: `sweeps` exact coordinate sweeps first (for a poor start), then
+/// Newton steps on the free fractions with an active set and backtracking (Q is convex),
+/// falling back to a sweep where Newton fails. `a` is row-major nc × MAXP. Returns `false`
+/// if the minimum could not be found to 1e-6 in the gradient.
+fn minimise_q(z: &[f64], a: &[f64], np: usize, beta: &mut [f64; MAXP], sweeps: usize) -> bool {
     let q = |b: &[f64; MAXP]| -> f64 {
         let mut s: f64 = b[..np].iter().sum();
         for (i, zi) in z.iter().enumerate() {
@@ -1091,9 +1108,29 @@ fn minimise_q(z: &[f64], a: &[f64], np: usize, beta: &mut [f64; MAXP]) -> bool {
         }
         s
     };
-    for _ in 0..4 {
+    for _ in 0..sweeps {
         coordinate_sweep(z, a, np, beta);
     }
+    if beta[..np].iter().all(|&b| !(b > 0.0)) {
+        coordinate_sweep(z, a, np, beta);
+    }
+    // Largest |∂Q/∂β_k| over the phases not held at zero by the bound.
+    let grad_max = |b: &[f64; MAXP]| -> f64 {
+        let mut g = [1.0; MAXP];
+        for (i, zi) in z.iter().enumerate() {
+            if *zi > 0.0 {
+                let ai = &a[i * MAXP..i * MAXP + MAXP];
+                let e: f64 = (0..np).map(|k| b[k] * ai[k]).sum();
+                for k in 0..np {
+                    g[k] -= zi * ai[k] / e;
+                }
+            }
+        }
+        (0..np)
+            .filter(|&k| b[k] > 0.0 || g[k] < 0.0)
+            .map(|k| g[k].abs())
+            .fold(0.0, f64::max)
+    };
     let mut gmax = f64::INFINITY;
     for _ in 0..100 {
         let mut g = [1.0; MAXP];
@@ -1187,9 +1224,14 @@ fn minimise_q(z: &[f64], a: &[f64], np: usize, beta: &mut [f64; MAXP]) -> bool {
             {
                 cand[k] = 0.0;
             }
-            if q(&cand) <= q0 {
+            // Near the minimum Q changes by less than its round-off: there a step that
+            // reduces the gradient is taken instead.
+            if q(&cand) <= q0 || (gmax < 1e-6 && grad_max(&cand) < 0.5 * gmax) {
                 *beta = cand;
                 moved = true;
+                break;
+            }
+            if gmax < 1e-6 {
                 break;
             }
             t *= 0.5;
@@ -1198,58 +1240,73 @@ fn minimise_q(z: &[f64], a: &[f64], np: usize, beta: &mut [f64; MAXP]) -> bool {
             if gmax < 1e-10 {
                 return true;
             }
+            let before = *beta;
             coordinate_sweep(z, a, np, beta);
+            if *beta == before {
+                // Neither Newton nor the sweep moves: stuck.
+                break;
+            }
         }
     }
     gmax < 1e-6
 }
 
 /// One sweep of exact minimisation of Q over each β_k in turn, the others fixed: Q is convex
-/// in β_k and ∂Q/∂β_k = 1 − Σ_i z_i a_ik/(E_i^(−k) + β_k a_ik) increases with β_k, so the
-/// minimiser is 0 or the root, found by bisection in ln β_k. Robust where Newton is badly
-/// scaled (a phase entering where E_i is tiny).
+/// in β_k and ∂Q/∂β_k = g(β_k) = 1 − Σ_i z_i a_ik/(E_i^(−k) + β_k a_ik) increases with β_k,
+/// so the minimiser is 0 or the root of g. g is also concave, so Newton's method from a
+/// point left of the root climbs to it monotonically; the root is bracketed and a step
+/// leaving the bracket is replaced by bisection (in ln β_k while the bracket spans decades).
+/// Robust where the multivariate Newton step is badly scaled (a phase entering where E_i is
+/// tiny).
 fn coordinate_sweep(z: &[f64], a: &[f64], np: usize, beta: &mut [f64; MAXP]) {
     for k in 0..np {
-        let g = |b: f64| -> f64 {
-            let mut s = 1.0;
+        // g(b) and g'(b) = Σ_i z_i a_ik² / (E_i^(−k) + b a_ik)².
+        let g = |b: f64| -> (f64, f64) {
+            let (mut s, mut d) = (1.0, 0.0);
             for (i, zi) in z.iter().enumerate() {
-                if *zi > 0.0 {
-                    let ai = &a[i * MAXP..i * MAXP + MAXP];
+                let ai = &a[i * MAXP..i * MAXP + MAXP];
+                if *zi > 0.0 && ai[k] > 0.0 {
                     let e: f64 = (0..np).filter(|&l| l != k).map(|l| beta[l] * ai[l]).sum::<f64>() + b * ai[k];
-                    s -= zi * ai[k] / e;
+                    let r = zi * ai[k] / e;
+                    s -= r;
+                    d += r * ai[k] / e;
                 }
             }
-            s
+            (s, d)
         };
-        if !(g(0.0) < 0.0) {
+        if !(g(0.0).0 < 0.0) {
             beta[k] = 0.0;
             continue;
         }
-        let (mut lo, mut hi) = (1e-300f64, 1.0f64);
-        // ∂Q/∂β_k ≥ 0 at the bracket's top (enlarge it if the a_ik are small).
-        while g(hi) < 0.0 && hi < 1e300 {
-            hi *= 16.0;
-        }
-        if g(lo) >= 0.0 {
-            beta[k] = lo;
-            continue;
-        }
+        // g(lo) < 0 ≤ g(hi).
+        let (mut lo, mut hi) = (0.0f64, f64::INFINITY);
+        let mut b = if beta[k] > 0.0 { beta[k] } else { 1e-3 };
         for _ in 0..200 {
-            let mid = if hi / lo > 4.0 {
-                (lo * hi).sqrt()
+            let (gb, db) = g(b);
+            if gb < 0.0 {
+                lo = b;
             } else {
-                0.5 * (lo + hi)
-            };
-            if g(mid) < 0.0 {
-                lo = mid;
-            } else {
-                hi = mid;
+                hi = b;
             }
-            if hi - lo <= 1e-15 * hi {
+            let mut next = b - gb / db;
+            if !(next > lo && next < hi) {
+                next = if hi.is_infinite() {
+                    16.0 * b
+                } else if lo == 0.0 {
+                    hi / 16.0
+                } else if hi / lo > 4.0 {
+                    (lo * hi).sqrt()
+                } else {
+                    0.5 * (lo + hi)
+                };
+            }
+            let done = (next - b).abs() <= 1e-15 * b || hi - lo <= 1e-15 * hi || !(next < 1e300 && next > 1e-300);
+            b = next;
+            if done {
                 break;
             }
         }
-        beta[k] = 0.5 * (lo + hi);
+        beta[k] = b.clamp(1e-300, 1e300);
     }
 }
 
@@ -1515,12 +1572,23 @@ mod tests {
         a[..3].copy_from_slice(&[1.0, 2.0, 1e-3]);
         a[MAXP..MAXP + 3].copy_from_slice(&[1.0, 0.5, 1e-3]);
         let mut beta = [0.3, 0.3, 0.3, 0.0];
-        assert!(minimise_q(&z, &a, 3, &mut beta));
+        assert!(minimise_q(&z, &a, 3, &mut beta, 4));
         assert!(
             (beta[1] - 0.5).abs() < 1e-12 && (beta[0] - 0.5).abs() < 1e-12,
             "{beta:?}"
         );
         assert_eq!(beta[2], 0.0);
+        // The same minimum by Newton alone from every fraction positive, and from a start
+        // with the third phase already at zero.
+        for start in [[0.3, 0.3, 0.3, 0.0], [0.9, 0.1, 0.0, 0.0]] {
+            let mut beta = start;
+            assert!(minimise_q(&z, &a, 3, &mut beta, 0));
+            assert!(
+                (beta[1] - 0.5).abs() < 1e-12 && (beta[0] - 0.5).abs() < 1e-12,
+                "{start:?}: {beta:?}"
+            );
+            assert_eq!(beta[2], 0.0);
+        }
     }
 
     #[test]

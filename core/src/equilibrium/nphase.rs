@@ -7,17 +7,27 @@
 //! 1. stability of the feed by the tangent-plane test (M. L. Michelsen, "The isothermal flash
 //!    problem. Part I. Stability", Fluid Phase Equilib. 9 (1982) 1–19) from vapour- and
 //!    liquid-like K-value trials and nearly pure trial phases (the latter find liquid–liquid
-//!    splits of activity models);
+//!    splits of activity models), stopped at the first negative stationary point; only if no
+//!    split from the points found stands is the test completed with every trial;
 //! 2. stepwise phase addition (Michelsen, "Part II. Phase-split calculation", Fluid Phase
-//!    Equilib. 9 (1982) 21–40): a split of the feed with a negative stationary point, then a
-//!    stability test of one converged phase (all phases share one tangent plane), whose
-//!    negative stationary point joins the phases, until the test finds none or the phase
-//!    limit is reached;
+//!    Equilib. 9 (1982) 21–40): a split of the feed with a negative stationary point, then,
+//!    for each converged phase set, one stability test of one phase (all phases share one
+//!    tangent plane), whose most negative stationary point joins the phases as the new
+//!    phase's estimate, until the test finds none or the phase limit is reached. The negative
+//!    stationary points of earlier tests are remembered: one whose tangent-plane distance
+//!    from the new set's plane (one ln φ evaluation) is still negative joins the phases
+//!    without a new test, so a test runs once per phase set that no remembered point
+//!    destabilises — and always on the answer, as its certificate. A warm start from the
+//!    previous answer skips the search when its split converges with every phase present
+//!    and that certificate passes;
 //! 3. for each phase set, successive substitution in which the phase fractions solve
 //!    Michelsen's convex multiphase Rachford–Rice problem (M. L. Michelsen, "Calculation of
 //!    multiphase equilibrium", Comput. Chem. Eng. 18 (1994) 545–550):
 //!    Q(β) = Σ_k β_k − Σ_i z_i ln E_i, E_i = Σ_k β_k/φ_ik, β_k ≥ 0, minimised by Newton steps
-//!    with an active set, x_ik = z_i/(φ_ik E_i); accelerated by the dominant-eigenvalue
+//!    with an active set from the previous step's fractions (exact coordinate sweeps first
+//!    only for guessed fractions), x_ik = z_i/(φ_ik E_i); Newton on G takes over once the
+//!    successive substitution is close (residual below 1e-3) or stalls there (below 0.1);
+//!    accelerated by the dominant-eigenvalue
 //!    method (Crowe & Nishio, AIChE J. 21 (1975) 528); a phase whose fraction stays at zero
 //!    (Σ_i x_ik < 1: a positive tangent-plane distance) is removed, phases whose
 //!    compositions coincide are merged;
@@ -207,6 +217,11 @@ pub(crate) struct Solver {
     pub(crate) stab: StabilityResult,
     /// Least tangent-plane distance of the last stability test of the answer.
     pub(crate) certificate: Option<f64>,
+    /// Compositions of negative stationary points of earlier stability tests of this call
+    /// (row-major, `known_count` × nc), not yet in the phase set: candidates for a new phase
+    /// that a cheap tangent-plane distance checks before a stability test is run.
+    known: Vec<f64>,
+    known_count: usize,
 }
 
 impl Solver {
@@ -265,6 +280,78 @@ impl Solver {
             self.absent[k] = 0;
         }
         self.guessed_beta = true;
+        self.known_count = 0;
+    }
+
+    /// Remembers the negative stationary points of `self.stab` (from `first` on) that are not
+    /// phases of the set, as candidates for later phase additions.
+    fn remember_points(&mut self, first: usize, threshold: f64) {
+        for k in first..self.stab.points.len() {
+            if self.stab.points[k].tpd >= -threshold || self.is_member(k) {
+                continue;
+            }
+            let w = std::mem::take(&mut self.stab.points[k].composition);
+            self.remember(&w);
+            self.stab.points[k].composition = w;
+        }
+    }
+
+    /// Remembers composition `w` as a candidate for a later phase addition.
+    fn remember(&mut self, w: &[f64]) {
+        let nc = self.nc;
+        let at = self.known_count * nc;
+        if self.known.len() < at + nc {
+            self.known.resize(at + nc, 0.0);
+        }
+        self.known[at..at + nc].copy_from_slice(w);
+        self.known_count += 1;
+    }
+
+    /// The most negative tangent-plane distance, from the current (converged) phase set, of
+    /// the remembered compositions, each evaluated once (Michelsen 1982a: any composition
+    /// below the tangent plane proves the set unstable and is a starting estimate of the new
+    /// phase). Returns its index if below −threshold; forgets the others' order only.
+    fn known_below_plane<M: FluidModel + ?Sized>(
+        &mut self,
+        model: &M,
+        t: f64,
+        p: f64,
+        plan: &Plan,
+    ) -> Result<Option<usize>> {
+        let nc = self.nc;
+        let r = (0..self.np)
+            .max_by(|&a, &b| self.beta[a].total_cmp(&self.beta[b]))
+            .unwrap_or(0);
+        let mut best: Option<(usize, f64)> = None;
+        for j in 0..self.known_count {
+            let w = &self.known[j * nc..(j + 1) * nc];
+            let member = (0..self.np).any(|m| (0..nc).map(|i| (w[i] - self.x[m][i]).abs()).fold(0.0, f64::max) < 1e-6);
+            if member {
+                continue;
+            }
+            model.phase_ln_phi(t, p, w, plan.root, Need::VALUES, &mut self.fw, &mut self.ws.phi_a)?;
+            // tpd(w) = Σ_i w_i (ln w_i + ln φ_i(w) − ln x_ri − ln φ_ri), per mol, in RT.
+            let mut tpd = 0.0;
+            for i in 0..nc {
+                if self.z[i] > 0.0 && w[i] > 0.0 {
+                    tpd += w[i] * (w[i].ln() + self.ws.phi_a.ln_phi[i] - self.x[r][i].ln() - self.phi[r].ln_phi[i]);
+                }
+            }
+            if tpd.is_finite() && tpd < -plan.stability.threshold && best.is_none_or(|(_, b)| tpd < b) {
+                best = Some((j, tpd));
+            }
+        }
+        Ok(best.map(|(j, _)| j))
+    }
+
+    /// Removes remembered composition `j`.
+    fn forget_known(&mut self, j: usize) {
+        let nc = self.nc;
+        let last = self.known_count - 1;
+        if j != last {
+            self.known.copy_within(last * nc..(last + 1) * nc, j * nc);
+        }
+        self.known_count = last;
     }
 
     /// Adds a phase of composition `w` to the set (with fraction 0: the next multiphase
@@ -451,13 +538,15 @@ impl Solver {
             if err < target && all_present && ss_done > 0 {
                 return Ok(SetOutcome::Converged);
             }
-            // Newton once successive substitution has done its cheap work.
+            // Newton once successive substitution has done its cheap work: close to the
+            // solution, or stalling within a residual of 0.1 (far from it a damped Newton
+            // step on an indefinite G crawls; common practice, no source).
             let slow = ss_done >= 3 && err > 0.6 * last_err;
             if all_present
                 && newton_tries < 3
                 && plan.max_newton > 0
                 && ss_done >= next_newton
-                && (err < 1e-3 || slow || ss_done >= next_newton + 15 || (warm && newton_tries == 0))
+                && (err < 1e-3 || (slow && err < 0.1) || ss_done >= next_newton + 15 || (warm && newton_tries == 0))
             {
                 newton_tries += 1;
                 match self.newton(model, t, p, plan, target, diag)? {
@@ -971,6 +1060,22 @@ impl Solver {
                 self.certificate = None;
                 return Ok(true);
             }
+            // A remembered stationary point below this set's tangent plane is the new phase's
+            // estimate, found without a stability test; the test runs once no remembered
+            // point qualifies (and always on the answer, as its certificate).
+            if room && self.known_count > 0 {
+                if let Some(j) = self.known_below_plane(model, t, p, plan)? {
+                    diag.splits_tried += 1;
+                    let nc = self.nc;
+                    let mut w = std::mem::take(&mut self.ws.y);
+                    w.copy_from_slice(&self.known[j * nc..(j + 1) * nc]);
+                    self.forget_known(j);
+                    self.add_phase(&w);
+                    self.ws.y = w;
+                    continue;
+                }
+                self.known_count = 0;
+            }
             self.test_largest(model, t, p, plan, diag)?;
             if self.stab.stable {
                 return Ok(true);
@@ -986,6 +1091,7 @@ impl Solver {
                 )));
             }
             diag.splits_tried += 1;
+            self.remember_points(1, plan.stability.threshold);
             let w = std::mem::take(&mut self.stab.points[0].composition);
             self.add_phase(&w);
             self.stab.points[0].composition = w;
@@ -1455,8 +1561,11 @@ impl MultiphaseContext {
     }
 }
 
-/// The cold path: the stability test of the feed, then a split per negative stationary point
-/// (most negative first) until one is not trivial, then stepwise phase addition.
+/// The cold path: the stability test of the feed, stopped at its first negative stationary
+/// point, and a split from it (the feed's other negative points are remembered for the phase
+/// additions); if no split from those points stands, the test is completed with every trial
+/// and a split is tried from each further negative point, most negative first, until one is
+/// not trivial. Then stepwise phase addition.
 fn cold<M: FluidModel + ?Sized>(
     model: &M,
     t: f64,
@@ -1465,51 +1574,71 @@ fn cold<M: FluidModel + ?Sized>(
     s: &mut Solver,
     diag: &mut Diagnostics,
 ) -> Result<()> {
-    let sopts = StabilityOptions {
-        early_exit: false,
-        ..plan.stability
-    };
-    let z = std::mem::take(&mut s.z);
-    let out = stability_on(model, t, p, &z, plan.root, &sopts, &[], &mut s.ws, &mut s.stab);
-    s.z = z;
-    out?;
-    diag.stability_iterations = s.stab.iterations;
-    if s.stab.stable || plan.limit < 2 {
-        s.certificate = Some(s.stab.min_tpd);
-        s.single(model, t, p, plan)?;
-        if !s.stab.stable {
-            return Err(Error::NoSolution(format!(
-                "at T = {t} K, p = {p} Pa the feed is unstable (tangent-plane distance {}) but \
-                 only one phase is allowed",
-                num(s.stab.min_tpd),
-                t = num(t),
-                p = num(p)
-            )));
-        }
-        if !plan.certificate {
-            s.certificate = None;
-        }
-        return Ok(());
-    }
-    let points = std::mem::take(&mut s.stab.points);
     let mut last_err = None;
-    let mut done = false;
-    for pt in points.iter().filter(|pt| pt.tpd < -plan.stability.threshold) {
-        diag.splits_tried += 1;
-        let z = s.z.clone();
-        s.start_from(&[&z, &pt.composition]);
-        match s.solve_and_add(model, t, p, plan, false, diag) {
-            Ok(true) => {
-                done = true;
-                break;
+    let mut tried: Vec<Vec<f64>> = Vec::new();
+    for complete in [false, true] {
+        let sopts = StabilityOptions {
+            early_exit: !complete,
+            ..plan.stability
+        };
+        let z = std::mem::take(&mut s.z);
+        let out = stability_on(model, t, p, &z, plan.root, &sopts, &[], &mut s.ws, &mut s.stab);
+        s.z = z;
+        out?;
+        diag.stability_iterations += s.stab.iterations;
+        if s.stab.stable || plan.limit < 2 {
+            s.certificate = Some(s.stab.min_tpd);
+            s.single(model, t, p, plan)?;
+            if !s.stab.stable {
+                return Err(Error::NoSolution(format!(
+                    "at T = {t} K, p = {p} Pa the feed is unstable (tangent-plane distance {}) but \
+                     only one phase is allowed",
+                    num(s.stab.min_tpd),
+                    t = num(t),
+                    p = num(p)
+                )));
             }
-            Ok(false) => {}
-            Err(e) => last_err = Some(e),
+            if !plan.certificate {
+                s.certificate = None;
+            }
+            return Ok(());
         }
-    }
-    s.stab.points = points;
-    if done {
-        return Ok(());
+        let points = std::mem::take(&mut s.stab.points);
+        let negative = |pt: &&super::stability::StationaryPoint| pt.tpd < -plan.stability.threshold;
+        let mut done = false;
+        for (k, pt) in points.iter().enumerate().filter(|(_, pt)| negative(pt)) {
+            let seen = tried.iter().any(|w| {
+                w.iter()
+                    .zip(&pt.composition)
+                    .map(|(a, b)| (a - b).abs())
+                    .fold(0.0, f64::max)
+                    < 1e-6
+            });
+            if seen {
+                continue;
+            }
+            tried.push(pt.composition.clone());
+            diag.splits_tried += 1;
+            let z = s.z.clone();
+            s.start_from(&[&z, &pt.composition]);
+            for (l, other) in points.iter().enumerate().filter(|(_, pt)| negative(pt)) {
+                if l != k {
+                    s.remember(&other.composition);
+                }
+            }
+            match s.solve_and_add(model, t, p, plan, false, diag) {
+                Ok(true) => {
+                    done = true;
+                    break;
+                }
+                Ok(false) => {}
+                Err(e) => last_err = Some(e),
+            }
+        }
+        s.stab.points = points;
+        if done {
+            return Ok(());
+        }
     }
     Err(last_err.unwrap_or_else(|| {
         Error::NoSolution(format!(

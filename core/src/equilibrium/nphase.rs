@@ -523,7 +523,13 @@ impl Solver {
             if !self.rachford_rice() {
                 return Ok(SetOutcome::NotConverged);
             }
-            self.evaluate_all(model, t, p, plan.root)?;
+            // Newton follows at once and evaluates the phases itself (with derivatives);
+            // only a set with a phase at β = 0 needs them here, for successive substitution.
+            if self.beta[..self.np].iter().all(|&b| b > 0.0) {
+                self.residual = f64::INFINITY;
+            } else {
+                self.evaluate_all(model, t, p, plan.root)?;
+            }
         }
         loop {
             if self.merge_identical() {
@@ -776,9 +782,9 @@ impl Solver {
                     alpha = alpha.min(0.9 * self.n[r][i] / -dr);
                 }
             }
-            // Quadratic regime (common practice, no source: a residual below 1e-3 before a
-            // Newton step): the candidate is evaluated without derivatives first.
-            let need = if err0 < 1e-3 { Need::VALUES } else { Need::COMPOSITION };
+            // The candidate is evaluated with derivatives, ready for the next step (a line
+            // search rarely rejects it, so ln φ is evaluated once per phase and step).
+            let need = Need::COMPOSITION;
             let g0 = self.gibbs;
             for k in 0..np {
                 self.n0[k].copy_from_slice(&self.n[k]);

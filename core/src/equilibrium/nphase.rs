@@ -7,17 +7,27 @@
 //! 1. stability of the feed by the tangent-plane test (M. L. Michelsen, "The isothermal flash
 //!    problem. Part I. Stability", Fluid Phase Equilib. 9 (1982) 1–19) from vapour- and
 //!    liquid-like K-value trials and nearly pure trial phases (the latter find liquid–liquid
-//!    splits of activity models);
+//!    splits of activity models), stopped at the first negative stationary point; only if no
+//!    split from the points found stands is the test completed with every trial;
 //! 2. stepwise phase addition (Michelsen, "Part II. Phase-split calculation", Fluid Phase
-//!    Equilib. 9 (1982) 21–40): a split of the feed with a negative stationary point, then a
-//!    stability test of one converged phase (all phases share one tangent plane), whose
-//!    negative stationary point joins the phases, until the test finds none or the phase
-//!    limit is reached;
+//!    Equilib. 9 (1982) 21–40): a split of the feed with a negative stationary point, then,
+//!    for each converged phase set, one stability test of one phase (all phases share one
+//!    tangent plane), whose most negative stationary point joins the phases as the new
+//!    phase's estimate, until the test finds none or the phase limit is reached. The negative
+//!    stationary points of earlier tests are remembered: one whose tangent-plane distance
+//!    from the new set's plane (one ln φ evaluation) is still negative joins the phases
+//!    without a new test, so a test runs once per phase set that no remembered point
+//!    destabilises — and always on the answer, as its certificate. A warm start from the
+//!    previous answer skips the search when its split converges with every phase present
+//!    and that certificate passes;
 //! 3. for each phase set, successive substitution in which the phase fractions solve
 //!    Michelsen's convex multiphase Rachford–Rice problem (M. L. Michelsen, "Calculation of
 //!    multiphase equilibrium", Comput. Chem. Eng. 18 (1994) 545–550):
 //!    Q(β) = Σ_k β_k − Σ_i z_i ln E_i, E_i = Σ_k β_k/φ_ik, β_k ≥ 0, minimised by Newton steps
-//!    with an active set, x_ik = z_i/(φ_ik E_i); accelerated by the dominant-eigenvalue
+//!    with an active set from the previous step's fractions (exact coordinate sweeps first
+//!    only for guessed fractions), x_ik = z_i/(φ_ik E_i); Newton on G takes over once the
+//!    successive substitution is close (residual below 1e-3) or stalls there (below 0.1);
+//!    accelerated by the dominant-eigenvalue
 //!    method (Crowe & Nishio, AIChE J. 21 (1975) 528); a phase whose fraction stays at zero
 //!    (Σ_i x_ik < 1: a positive tangent-plane distance) is removed, phases whose
 //!    compositions coincide are merged;
@@ -178,6 +188,8 @@ pub(crate) struct Solver {
     roots: [RootChoice; MAXP],
     /// SS iterations a phase has spent at β = 0.
     absent: [usize; MAXP],
+    /// Whether `beta` holds guessed fractions (a new phase set), not those of a solve.
+    guessed_beta: bool,
     /// Phase amounts per mol of feed (Newton variables and their last accepted values).
     n: [Vec<f64>; MAXP],
     n0: [Vec<f64>; MAXP],
@@ -205,6 +217,11 @@ pub(crate) struct Solver {
     pub(crate) stab: StabilityResult,
     /// Least tangent-plane distance of the last stability test of the answer.
     pub(crate) certificate: Option<f64>,
+    /// Compositions of negative stationary points of earlier stability tests of this call
+    /// (row-major, `known_count` × nc), not yet in the phase set: candidates for a new phase
+    /// that a cheap tangent-plane distance checks before a stability test is run.
+    known: Vec<f64>,
+    known_count: usize,
 }
 
 impl Solver {
@@ -262,6 +279,79 @@ impl Solver {
             self.beta[k] = 1.0 / self.np as f64;
             self.absent[k] = 0;
         }
+        self.guessed_beta = true;
+        self.known_count = 0;
+    }
+
+    /// Remembers the negative stationary points of `self.stab` (from `first` on) that are not
+    /// phases of the set, as candidates for later phase additions.
+    fn remember_points(&mut self, first: usize, threshold: f64) {
+        for k in first..self.stab.points.len() {
+            if self.stab.points[k].tpd >= -threshold || self.is_member(k) {
+                continue;
+            }
+            let w = std::mem::take(&mut self.stab.points[k].composition);
+            self.remember(&w);
+            self.stab.points[k].composition = w;
+        }
+    }
+
+    /// Remembers composition `w` as a candidate for a later phase addition.
+    fn remember(&mut self, w: &[f64]) {
+        let nc = self.nc;
+        let at = self.known_count * nc;
+        if self.known.len() < at + nc {
+            self.known.resize(at + nc, 0.0);
+        }
+        self.known[at..at + nc].copy_from_slice(w);
+        self.known_count += 1;
+    }
+
+    /// The most negative tangent-plane distance, from the current (converged) phase set, of
+    /// the remembered compositions, each evaluated once (Michelsen 1982a: any composition
+    /// below the tangent plane proves the set unstable and is a starting estimate of the new
+    /// phase). Returns its index if below −threshold; forgets the others' order only.
+    fn known_below_plane<M: FluidModel + ?Sized>(
+        &mut self,
+        model: &M,
+        t: f64,
+        p: f64,
+        plan: &Plan,
+    ) -> Result<Option<usize>> {
+        let nc = self.nc;
+        let r = (0..self.np)
+            .max_by(|&a, &b| self.beta[a].total_cmp(&self.beta[b]))
+            .unwrap_or(0);
+        let mut best: Option<(usize, f64)> = None;
+        for j in 0..self.known_count {
+            let w = &self.known[j * nc..(j + 1) * nc];
+            let member = (0..self.np).any(|m| (0..nc).map(|i| (w[i] - self.x[m][i]).abs()).fold(0.0, f64::max) < 1e-6);
+            if member {
+                continue;
+            }
+            model.phase_ln_phi(t, p, w, plan.root, Need::VALUES, &mut self.fw, &mut self.ws.phi_a)?;
+            // tpd(w) = Σ_i w_i (ln w_i + ln φ_i(w) − ln x_ri − ln φ_ri), per mol, in RT.
+            let mut tpd = 0.0;
+            for i in 0..nc {
+                if self.z[i] > 0.0 && w[i] > 0.0 {
+                    tpd += w[i] * (w[i].ln() + self.ws.phi_a.ln_phi[i] - self.x[r][i].ln() - self.phi[r].ln_phi[i]);
+                }
+            }
+            if tpd.is_finite() && tpd < -plan.stability.threshold && best.is_none_or(|(_, b)| tpd < b) {
+                best = Some((j, tpd));
+            }
+        }
+        Ok(best.map(|(j, _)| j))
+    }
+
+    /// Removes remembered composition `j`.
+    fn forget_known(&mut self, j: usize) {
+        let nc = self.nc;
+        let last = self.known_count - 1;
+        if j != last {
+            self.known.copy_within(last * nc..(last + 1) * nc, j * nc);
+        }
+        self.known_count = last;
     }
 
     /// Adds a phase of composition `w` to the set (with fraction 0: the next multiphase
@@ -355,13 +445,26 @@ impl Solver {
                 self.a[i * MAXP + k] = (lo - self.lnphi[i * MAXP + k]).exp();
             }
         }
+        // Fractions of the last solve are a close start: Newton alone. Guessed fractions, or
+        // a phase just added (β = 0, not yet absent, given a small share), take exact
+        // coordinate sweeps first; a phase already at β = 0 starts there (Newton's active
+        // set frees it if Q falls).
         let mut beta = [0.0; MAXP];
+        let mut sweeps = if self.guessed_beta { 4 } else { 0 };
         for k in 0..np {
-            beta[k] = if self.beta[k] > 0.0 { self.beta[k] } else { 1e-3 };
+            beta[k] = if self.beta[k] > 0.0 {
+                self.beta[k]
+            } else if self.absent[k] == 0 {
+                sweeps = 4;
+                1e-3
+            } else {
+                0.0
+            };
         }
-        if !minimise_q(&self.z, &self.a, np, &mut beta) {
+        if !minimise_q(&self.z, &self.a, np, &mut beta, sweeps) {
             return false;
         }
+        self.guessed_beta = false;
         for i in 0..nc {
             if self.z[i] <= 0.0 {
                 continue;
@@ -420,7 +523,13 @@ impl Solver {
             if !self.rachford_rice() {
                 return Ok(SetOutcome::NotConverged);
             }
-            self.evaluate_all(model, t, p, plan.root)?;
+            // Newton follows at once and evaluates the phases itself (with derivatives);
+            // only a set with a phase at β = 0 needs them here, for successive substitution.
+            if self.beta[..self.np].iter().all(|&b| b > 0.0) {
+                self.residual = f64::INFINITY;
+            } else {
+                self.evaluate_all(model, t, p, plan.root)?;
+            }
         }
         loop {
             if self.merge_identical() {
@@ -435,13 +544,15 @@ impl Solver {
             if err < target && all_present && ss_done > 0 {
                 return Ok(SetOutcome::Converged);
             }
-            // Newton once successive substitution has done its cheap work.
+            // Newton once successive substitution has done its cheap work: close to the
+            // solution, or stalling within a residual of 0.1 (far from it a damped Newton
+            // step on an indefinite G crawls; common practice, no source).
             let slow = ss_done >= 3 && err > 0.6 * last_err;
             if all_present
                 && newton_tries < 3
                 && plan.max_newton > 0
                 && ss_done >= next_newton
-                && (err < 1e-3 || slow || ss_done >= next_newton + 15 || (warm && newton_tries == 0))
+                && (err < 1e-3 || (slow && err < 0.1) || ss_done >= next_newton + 15 || (warm && newton_tries == 0))
             {
                 newton_tries += 1;
                 match self.newton(model, t, p, plan, target, diag)? {
@@ -671,9 +782,9 @@ impl Solver {
                     alpha = alpha.min(0.9 * self.n[r][i] / -dr);
                 }
             }
-            // Quadratic regime (common practice, no source: a residual below 1e-3 before a
-            // Newton step): the candidate is evaluated without derivatives first.
-            let need = if err0 < 1e-3 { Need::VALUES } else { Need::COMPOSITION };
+            // The candidate is evaluated with derivatives, ready for the next step (a line
+            // search rarely rejects it, so ln φ is evaluated once per phase and step).
+            let need = Need::COMPOSITION;
             let g0 = self.gibbs;
             for k in 0..np {
                 self.n0[k].copy_from_slice(&self.n[k]);
@@ -955,6 +1066,22 @@ impl Solver {
                 self.certificate = None;
                 return Ok(true);
             }
+            // A remembered stationary point below this set's tangent plane is the new phase's
+            // estimate, found without a stability test; the test runs once no remembered
+            // point qualifies (and always on the answer, as its certificate).
+            if room && self.known_count > 0 {
+                if let Some(j) = self.known_below_plane(model, t, p, plan)? {
+                    diag.splits_tried += 1;
+                    let nc = self.nc;
+                    let mut w = std::mem::take(&mut self.ws.y);
+                    w.copy_from_slice(&self.known[j * nc..(j + 1) * nc]);
+                    self.forget_known(j);
+                    self.add_phase(&w);
+                    self.ws.y = w;
+                    continue;
+                }
+                self.known_count = 0;
+            }
             self.test_largest(model, t, p, plan, diag)?;
             if self.stab.stable {
                 return Ok(true);
@@ -970,6 +1097,7 @@ impl Solver {
                 )));
             }
             diag.splits_tried += 1;
+            self.remember_points(1, plan.stability.threshold);
             let w = std::mem::take(&mut self.stab.points[0].composition);
             self.add_phase(&w);
             self.stab.points[0].composition = w;
@@ -1074,10 +1202,11 @@ impl Solver {
 }
 
 /// Minimises Q(β) = Σ_k β_k − Σ_i z_i ln E_i, E_i = Σ_k β_k a_ik, over β ≥ 0 (Michelsen 1994)
-/// for the first `np` phases: exact coordinate sweeps first, then Newton steps on the free
-/// fractions with an active set and backtracking (Q is convex). `a` is row-major nc × MAXP.
-/// Returns `false` if the minimum could not be found to 1e-6 in the gradient.
-fn minimise_q(z: &[f64], a: &[f64], np: usize, beta: &mut [f64; MAXP]) -> bool {
+/// for the first `np` phases: `sweeps` exact coordinate sweeps first (for a poor start), then
+/// Newton steps on the free fractions with an active set and backtracking (Q is convex),
+/// falling back to a sweep where Newton fails. `a` is row-major nc × MAXP. Returns `false`
+/// if the minimum could not be found to 1e-6 in the gradient.
+fn minimise_q(z: &[f64], a: &[f64], np: usize, beta: &mut [f64; MAXP], sweeps: usize) -> bool {
     let q = |b: &[f64; MAXP]| -> f64 {
         let mut s: f64 = b[..np].iter().sum();
         for (i, zi) in z.iter().enumerate() {
@@ -1091,9 +1220,29 @@ fn minimise_q(z: &[f64], a: &[f64], np: usize, beta: &mut [f64; MAXP]) -> bool {
         }
         s
     };
-    for _ in 0..4 {
+    for _ in 0..sweeps {
         coordinate_sweep(z, a, np, beta);
     }
+    if beta[..np].iter().all(|&b| !(b > 0.0)) {
+        coordinate_sweep(z, a, np, beta);
+    }
+    // Largest |∂Q/∂β_k| over the phases not held at zero by the bound.
+    let grad_max = |b: &[f64; MAXP]| -> f64 {
+        let mut g = [1.0; MAXP];
+        for (i, zi) in z.iter().enumerate() {
+            if *zi > 0.0 {
+                let ai = &a[i * MAXP..i * MAXP + MAXP];
+                let e: f64 = (0..np).map(|k| b[k] * ai[k]).sum();
+                for k in 0..np {
+                    g[k] -= zi * ai[k] / e;
+                }
+            }
+        }
+        (0..np)
+            .filter(|&k| b[k] > 0.0 || g[k] < 0.0)
+            .map(|k| g[k].abs())
+            .fold(0.0, f64::max)
+    };
     let mut gmax = f64::INFINITY;
     for _ in 0..100 {
         let mut g = [1.0; MAXP];
@@ -1187,9 +1336,14 @@ fn minimise_q(z: &[f64], a: &[f64], np: usize, beta: &mut [f64; MAXP]) -> bool {
             {
                 cand[k] = 0.0;
             }
-            if q(&cand) <= q0 {
+            // Near the minimum Q changes by less than its round-off: there a step that
+            // reduces the gradient is taken instead.
+            if q(&cand) <= q0 || (gmax < 1e-6 && grad_max(&cand) < 0.5 * gmax) {
                 *beta = cand;
                 moved = true;
+                break;
+            }
+            if gmax < 1e-6 {
                 break;
             }
             t *= 0.5;
@@ -1198,58 +1352,73 @@ fn minimise_q(z: &[f64], a: &[f64], np: usize, beta: &mut [f64; MAXP]) -> bool {
             if gmax < 1e-10 {
                 return true;
             }
+            let before = *beta;
             coordinate_sweep(z, a, np, beta);
+            if *beta == before {
+                // Neither Newton nor the sweep moves: stuck.
+                break;
+            }
         }
     }
     gmax < 1e-6
 }
 
 /// One sweep of exact minimisation of Q over each β_k in turn, the others fixed: Q is convex
-/// in β_k and ∂Q/∂β_k = 1 − Σ_i z_i a_ik/(E_i^(−k) + β_k a_ik) increases with β_k, so the
-/// minimiser is 0 or the root, found by bisection in ln β_k. Robust where Newton is badly
-/// scaled (a phase entering where E_i is tiny).
+/// in β_k and ∂Q/∂β_k = g(β_k) = 1 − Σ_i z_i a_ik/(E_i^(−k) + β_k a_ik) increases with β_k,
+/// so the minimiser is 0 or the root of g. g is also concave, so Newton's method from a
+/// point left of the root climbs to it monotonically; the root is bracketed and a step
+/// leaving the bracket is replaced by bisection (in ln β_k while the bracket spans decades).
+/// Robust where the multivariate Newton step is badly scaled (a phase entering where E_i is
+/// tiny).
 fn coordinate_sweep(z: &[f64], a: &[f64], np: usize, beta: &mut [f64; MAXP]) {
     for k in 0..np {
-        let g = |b: f64| -> f64 {
-            let mut s = 1.0;
+        // g(b) and g'(b) = Σ_i z_i a_ik² / (E_i^(−k) + b a_ik)².
+        let g = |b: f64| -> (f64, f64) {
+            let (mut s, mut d) = (1.0, 0.0);
             for (i, zi) in z.iter().enumerate() {
-                if *zi > 0.0 {
-                    let ai = &a[i * MAXP..i * MAXP + MAXP];
+                let ai = &a[i * MAXP..i * MAXP + MAXP];
+                if *zi > 0.0 && ai[k] > 0.0 {
                     let e: f64 = (0..np).filter(|&l| l != k).map(|l| beta[l] * ai[l]).sum::<f64>() + b * ai[k];
-                    s -= zi * ai[k] / e;
+                    let r = zi * ai[k] / e;
+                    s -= r;
+                    d += r * ai[k] / e;
                 }
             }
-            s
+            (s, d)
         };
-        if !(g(0.0) < 0.0) {
+        if !(g(0.0).0 < 0.0) {
             beta[k] = 0.0;
             continue;
         }
-        let (mut lo, mut hi) = (1e-300f64, 1.0f64);
-        // ∂Q/∂β_k ≥ 0 at the bracket's top (enlarge it if the a_ik are small).
-        while g(hi) < 0.0 && hi < 1e300 {
-            hi *= 16.0;
-        }
-        if g(lo) >= 0.0 {
-            beta[k] = lo;
-            continue;
-        }
+        // g(lo) < 0 ≤ g(hi).
+        let (mut lo, mut hi) = (0.0f64, f64::INFINITY);
+        let mut b = if beta[k] > 0.0 { beta[k] } else { 1e-3 };
         for _ in 0..200 {
-            let mid = if hi / lo > 4.0 {
-                (lo * hi).sqrt()
+            let (gb, db) = g(b);
+            if gb < 0.0 {
+                lo = b;
             } else {
-                0.5 * (lo + hi)
-            };
-            if g(mid) < 0.0 {
-                lo = mid;
-            } else {
-                hi = mid;
+                hi = b;
             }
-            if hi - lo <= 1e-15 * hi {
+            let mut next = b - gb / db;
+            if !(next > lo && next < hi) {
+                next = if hi.is_infinite() {
+                    16.0 * b
+                } else if lo == 0.0 {
+                    hi / 16.0
+                } else if hi / lo > 4.0 {
+                    (lo * hi).sqrt()
+                } else {
+                    0.5 * (lo + hi)
+                };
+            }
+            let done = (next - b).abs() <= 1e-15 * b || hi - lo <= 1e-15 * hi || !(next < 1e300 && next > 1e-300);
+            b = next;
+            if done {
                 break;
             }
         }
-        beta[k] = 0.5 * (lo + hi);
+        beta[k] = b.clamp(1e-300, 1e300);
     }
 }
 
@@ -1398,8 +1567,11 @@ impl MultiphaseContext {
     }
 }
 
-/// The cold path: the stability test of the feed, then a split per negative stationary point
-/// (most negative first) until one is not trivial, then stepwise phase addition.
+/// The cold path: the stability test of the feed, stopped at its first negative stationary
+/// point, and a split from it (the feed's other negative points are remembered for the phase
+/// additions); if no split from those points stands, the test is completed with every trial
+/// and a split is tried from each further negative point, most negative first, until one is
+/// not trivial. Then stepwise phase addition.
 fn cold<M: FluidModel + ?Sized>(
     model: &M,
     t: f64,
@@ -1408,51 +1580,71 @@ fn cold<M: FluidModel + ?Sized>(
     s: &mut Solver,
     diag: &mut Diagnostics,
 ) -> Result<()> {
-    let sopts = StabilityOptions {
-        early_exit: false,
-        ..plan.stability
-    };
-    let z = std::mem::take(&mut s.z);
-    let out = stability_on(model, t, p, &z, plan.root, &sopts, &[], &mut s.ws, &mut s.stab);
-    s.z = z;
-    out?;
-    diag.stability_iterations = s.stab.iterations;
-    if s.stab.stable || plan.limit < 2 {
-        s.certificate = Some(s.stab.min_tpd);
-        s.single(model, t, p, plan)?;
-        if !s.stab.stable {
-            return Err(Error::NoSolution(format!(
-                "at T = {t} K, p = {p} Pa the feed is unstable (tangent-plane distance {}) but \
-                 only one phase is allowed",
-                num(s.stab.min_tpd),
-                t = num(t),
-                p = num(p)
-            )));
-        }
-        if !plan.certificate {
-            s.certificate = None;
-        }
-        return Ok(());
-    }
-    let points = std::mem::take(&mut s.stab.points);
     let mut last_err = None;
-    let mut done = false;
-    for pt in points.iter().filter(|pt| pt.tpd < -plan.stability.threshold) {
-        diag.splits_tried += 1;
-        let z = s.z.clone();
-        s.start_from(&[&z, &pt.composition]);
-        match s.solve_and_add(model, t, p, plan, false, diag) {
-            Ok(true) => {
-                done = true;
-                break;
+    let mut tried: Vec<Vec<f64>> = Vec::new();
+    for complete in [false, true] {
+        let sopts = StabilityOptions {
+            early_exit: !complete,
+            ..plan.stability
+        };
+        let z = std::mem::take(&mut s.z);
+        let out = stability_on(model, t, p, &z, plan.root, &sopts, &[], &mut s.ws, &mut s.stab);
+        s.z = z;
+        out?;
+        diag.stability_iterations += s.stab.iterations;
+        if s.stab.stable || plan.limit < 2 {
+            s.certificate = Some(s.stab.min_tpd);
+            s.single(model, t, p, plan)?;
+            if !s.stab.stable {
+                return Err(Error::NoSolution(format!(
+                    "at T = {t} K, p = {p} Pa the feed is unstable (tangent-plane distance {}) but \
+                     only one phase is allowed",
+                    num(s.stab.min_tpd),
+                    t = num(t),
+                    p = num(p)
+                )));
             }
-            Ok(false) => {}
-            Err(e) => last_err = Some(e),
+            if !plan.certificate {
+                s.certificate = None;
+            }
+            return Ok(());
         }
-    }
-    s.stab.points = points;
-    if done {
-        return Ok(());
+        let points = std::mem::take(&mut s.stab.points);
+        let negative = |pt: &&super::stability::StationaryPoint| pt.tpd < -plan.stability.threshold;
+        let mut done = false;
+        for (k, pt) in points.iter().enumerate().filter(|(_, pt)| negative(pt)) {
+            let seen = tried.iter().any(|w| {
+                w.iter()
+                    .zip(&pt.composition)
+                    .map(|(a, b)| (a - b).abs())
+                    .fold(0.0, f64::max)
+                    < 1e-6
+            });
+            if seen {
+                continue;
+            }
+            tried.push(pt.composition.clone());
+            diag.splits_tried += 1;
+            let z = s.z.clone();
+            s.start_from(&[&z, &pt.composition]);
+            for (l, other) in points.iter().enumerate().filter(|(_, pt)| negative(pt)) {
+                if l != k {
+                    s.remember(&other.composition);
+                }
+            }
+            match s.solve_and_add(model, t, p, plan, false, diag) {
+                Ok(true) => {
+                    done = true;
+                    break;
+                }
+                Ok(false) => {}
+                Err(e) => last_err = Some(e),
+            }
+        }
+        s.stab.points = points;
+        if done {
+            return Ok(());
+        }
     }
     Err(last_err.unwrap_or_else(|| {
         Error::NoSolution(format!(
@@ -1515,12 +1707,23 @@ mod tests {
         a[..3].copy_from_slice(&[1.0, 2.0, 1e-3]);
         a[MAXP..MAXP + 3].copy_from_slice(&[1.0, 0.5, 1e-3]);
         let mut beta = [0.3, 0.3, 0.3, 0.0];
-        assert!(minimise_q(&z, &a, 3, &mut beta));
+        assert!(minimise_q(&z, &a, 3, &mut beta, 4));
         assert!(
             (beta[1] - 0.5).abs() < 1e-12 && (beta[0] - 0.5).abs() < 1e-12,
             "{beta:?}"
         );
         assert_eq!(beta[2], 0.0);
+        // The same minimum by Newton alone from every fraction positive, and from a start
+        // with the third phase already at zero.
+        for start in [[0.3, 0.3, 0.3, 0.0], [0.9, 0.1, 0.0, 0.0]] {
+            let mut beta = start;
+            assert!(minimise_q(&z, &a, 3, &mut beta, 0));
+            assert!(
+                (beta[1] - 0.5).abs() < 1e-12 && (beta[0] - 0.5).abs() < 1e-12,
+                "{start:?}: {beta:?}"
+            );
+            assert_eq!(beta[2], 0.0);
+        }
     }
 
     #[test]

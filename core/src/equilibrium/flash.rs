@@ -517,7 +517,12 @@ impl FlashContext {
             let x = self.best.x.clone();
             let y = self.best.y.clone();
             self.certificate_of(model, t, p, &x, &y, opts, diag)?;
-            if self.cert.stable || attempt == 1 {
+            // With a third phase allowed and at least three components, the multiphase solver
+            // starts from the split and the new stationary point at once (it removes a phase
+            // that does not belong) rather than after a second two-phase attempt. A binary has
+            // three phases only on a line of (T, p) (the phase rule), so there the second
+            // two-phase attempt comes first.
+            if self.cert.stable || attempt == 1 || (opts.max_phases >= 3 && nc >= 3) {
                 if !self.cert.stable && opts.max_phases >= 3 {
                     return self.add_third_phase(model, t, p, opts, diag);
                 }

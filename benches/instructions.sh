@@ -13,18 +13,8 @@ root=$(cd "$(dirname "$0")/.." && pwd)
 reps=${1:-20}
 cargo build --release -q -p tieline-benches --bin tieline-instructions --manifest-path "$root/Cargo.toml"
 bin="$root/target/release/tieline-instructions"
-tmp=$(mktemp -d)
-trap 'rm -rf "$tmp"' EXIT
-count() { # operation repetitions -> total instructions
-  valgrind --tool=callgrind --callgrind-out-file="$tmp/out" "$bin" "$1" "$2" >/dev/null 2>"$tmp/log"
-  sed -n 's/^summary: //p' "$tmp/out"
-}
-per_call() {
-  local a b
-  a=$(count "$1" "$reps")
-  b=$(count "$1" $((2 * reps)))
-  echo $(((b - a) / reps))
-}
+# shellcheck source=benches/callgrind.sh
+source "$root/benches/callgrind.sh"
 base=$(per_call ln-phi)
 declare -A seen
 printf '%-16s %14s %8s %10s\n' operation instructions ratio ours/ref

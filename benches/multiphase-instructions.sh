@@ -14,18 +14,8 @@ ops=("$@")
   multi-cold multi-cold-nocert multi-warm multi-warm-nocert)
 cargo build --release -q -p tieline-benches --bin multiphase-instructions --manifest-path "$root/Cargo.toml"
 bin="$root/target/release/multiphase-instructions"
-tmp=$(mktemp -d)
-trap 'rm -rf "$tmp"' EXIT
-count() { # operation repetitions -> total instructions
-  valgrind --tool=callgrind --callgrind-out-file="$tmp/out" "$bin" "$1" "$2" >/dev/null 2>"$tmp/log"
-  sed -n 's/^summary: //p' "$tmp/out"
-}
-per_call() {
-  local a b
-  a=$(count "$1" "$reps")
-  b=$(count "$1" $((2 * reps)))
-  echo $(((b - a) / reps))
-}
+# shellcheck source=benches/callgrind.sh
+source "$root/benches/callgrind.sh"
 declare -A n
 n[ln-phi]=$(per_call ln-phi)
 printf '%-18s %14s %9s %9s\n' operation instructions 'ln φ' 'two-phase'

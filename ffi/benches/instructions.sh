@@ -12,18 +12,8 @@ calls=("$@")
 [ ${#calls[@]} -gt 0 ] || calls=(flash2-cert flash2 flash2-same flash1-cert flash1 props sat)
 cargo build --release -q -p tieline-ffi --bin tieline-ffi-instructions --manifest-path "$root/Cargo.toml"
 bin="$root/target/release/tieline-ffi-instructions"
-tmp=$(mktemp -d)
-trap 'rm -rf "$tmp"' EXIT
-count() { # way call repetitions -> total instructions
-  valgrind --tool=callgrind --callgrind-out-file="$tmp/out" "$bin" "$1" "$2" "$3" >/dev/null 2>"$tmp/log"
-  sed -n 's/^summary: //p' "$tmp/out"
-}
-per_call() {
-  local a b
-  a=$(count "$1" "$2" "$reps")
-  b=$(count "$1" "$2" $((2 * reps)))
-  echo $(((b - a) / reps))
-}
+# shellcheck source=benches/callgrind.sh
+source "$root/benches/callgrind.sh"
 printf '%-12s %14s %14s %8s\n' call Rust "C ABI" C/Rust
 for call in "${calls[@]}"; do
   r=$(per_call rust "$call")

@@ -442,8 +442,9 @@ pub(crate) fn scratch(v: &mut Vec<f64>, len: usize) -> &mut [f64] {
 }
 
 /// A process-unique identity of a model's parameter set: the key of the per-temperature
-/// terms cached in the caller's scratch storage ([`ExcessDerivs`], the fugacity work). Models have no setters, so a
-/// parameter set never changes under its identity; clones share it. Ignored by `==`.
+/// terms cached in the caller's scratch storage ([`ExcessDerivs`], the fugacity work).
+/// Models have no setters, so a parameter set never changes under its identity; clones share
+/// it. Ignored by `==`.
 #[derive(Debug, Clone, Copy)]
 pub(crate) struct ParamId(pub(crate) u64);
 
@@ -452,9 +453,7 @@ impl ParamId {
         static NEXT: std::sync::atomic::AtomicU64 = std::sync::atomic::AtomicU64::new(1);
         ParamId(NEXT.fetch_add(1, std::sync::atomic::Ordering::Relaxed))
     }
-}
 
-impl ParamId {
     /// Whether the 3-value `key` (written by [`ParamId::store`]) marks terms cached for this
     /// parameter set at exactly T (K), including the T-derivatives if `with_dt`.
     pub(crate) fn cached(self, key: &[f64], t: f64, with_dt: bool) -> bool {

@@ -366,13 +366,22 @@ fn build_trials<M: FluidModel + ?Sized>(
 ) -> usize {
     ws.trial_kinds.clear();
     let ts = opts.trials;
+    // The trial of the other kind than the phase under test first: an incipient phase of a
+    // vapour is a liquid and the reverse, and a test that stops at its first negative point
+    // then starts the split from the deepest one instead of a shallow point beside the phase
+    // (common practice, no source).
+    let (first, second, first_cube, second_cube) = if ws.phi_feed.liquid_like {
+        (Trial::Vapor, Trial::Liquid, Trial::VaporCube, Trial::LiquidCube)
+    } else {
+        (Trial::Liquid, Trial::Vapor, Trial::LiquidCube, Trial::VaporCube)
+    };
     if ts.wilson {
-        ws.trial_kinds.push((Trial::Vapor, 0));
-        ws.trial_kinds.push((Trial::Liquid, 0));
+        ws.trial_kinds.push((first, 0));
+        ws.trial_kinds.push((second, 0));
     }
     if ts.cube_root {
-        ws.trial_kinds.push((Trial::VaporCube, 0));
-        ws.trial_kinds.push((Trial::LiquidCube, 0));
+        ws.trial_kinds.push((first_cube, 0));
+        ws.trial_kinds.push((second_cube, 0));
     }
     if ts.pure && nc > 1 {
         let active = (0..nc).filter(|&i| ws.sz[i] > 0.0).count();
@@ -425,6 +434,8 @@ fn run_trial<M: FluidModel + ?Sized>(
     let nc = ws.sz.len();
     let mut iterations = 0;
     let mut tm_prev = f64::INFINITY;
+    // The residuals of the last two iterations.
+    let (mut err_prev, mut err_prev2) = (f64::INFINITY, f64::INFINITY);
     let mut last_tpd = f64::INFINITY;
     // Whether ws.phi_b already holds ln φ (and, if `have_dn`, its derivatives) at ws.w.
     let mut evaluated = false;
@@ -470,14 +481,24 @@ fn run_trial<M: FluidModel + ?Sized>(
         };
         // Trivial-solution test (Michelsen & Mollerup 2007, ch. 10): with
         // β_t = Σ (W_i − z_i)(ln W_i − ln z_i), r = 2 tm/β_t tends to 1 near W = z.
-        if bt < 1e-8 || (iterations > 1 && bt < 5e-3 && (2.0 * tm / bt - 1.0).abs() < 0.2) {
+        // Where the phase is far from ideal, r near W = z differs from 1 by the non-ideal
+        // curvature along the approach (by about the contraction rate of the iteration), so a
+        // trial is also abandoned that is that close, has r in (0.5, 1.5) — tm convex along
+        // the approach — and whose residual fell by more than half in each of its last two
+        // steps, tm positive and falling: it is contracting to the zero of tm, a local
+        // minimum (common practice, no source).
+        let contracting =
+            iterations > 2 && err < 0.5 * err_prev && err_prev < 0.5 * err_prev2 && tm > 0.0 && tm < tm_prev;
+        let heading_to = |b: f64| {
+            let r = 2.0 * tm / b;
+            b < 1e-8
+                || (iterations > 1 && b < 5e-3 && ((r - 1.0).abs() < 0.2 || (contracting && (r - 1.0).abs() < 0.5)))
+        };
+        if heading_to(bt) {
             return Ok(outcome(TrialStatus::Trivial));
         }
         // The same test at the known stationary point y of zero distance.
-        if known
-            && err >= opts.tolerance
-            && (bk < 1e-8 || (iterations > 1 && bk < 5e-3 && (2.0 * tm / bk - 1.0).abs() < 0.2))
-        {
+        if known && err >= opts.tolerance && heading_to(bk) {
             return Ok(outcome(TrialStatus::Trivial));
         }
         if err < opts.tolerance {
@@ -497,6 +518,7 @@ fn run_trial<M: FluidModel + ?Sized>(
                 }
             }
             tm_prev = tm;
+            (err_prev2, err_prev) = (err_prev, err);
             continue;
         }
         // Newton in α = 2√W: gradient g_i = √W_i h_i,
@@ -570,6 +592,7 @@ fn run_trial<M: FluidModel + ?Sized>(
             }
         }
         tm_prev = tm;
+        (err_prev2, err_prev) = (err_prev, err);
     }
     Ok(TrialOutcome {
         status: TrialStatus::Unconverged,

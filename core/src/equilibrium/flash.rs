@@ -29,7 +29,7 @@
 use super::EquilibriumWork;
 use super::nphase::{Plan, Solver};
 use super::rachford_rice;
-use super::stability::{StabilityOptions, StabilityResult, stability_with, stability_with_known};
+use super::stability::{StabilityOptions, StabilityResult, stability_for_split, stability_with_known};
 use crate::error::{Error, Result, check, num};
 use crate::model::{FluidModel, LnPhi, Need, PhaseKind, RootChoice};
 use crate::numerics::linalg::{cholesky_solve, shifted_cholesky_solve};
@@ -451,7 +451,7 @@ impl FlashContext {
             early_exit: true,
             ..opts.stability
         };
-        stability_with(model, t, p, &z, &sopts, &[], &mut self.ws, &mut self.stab)?;
+        stability_for_split(model, t, p, &z, &sopts, &mut self.ws, &mut self.stab)?;
         self.feed_evaluated = true;
         diag.stability_iterations = self.stab.iterations;
         if self.stab.stable {

@@ -73,6 +73,9 @@ pub struct EquilibriumWork {
     pub(crate) chol: Vec<f64>,
     pub(crate) hist: [Vec<f64>; 3],
     pub(crate) trial_kinds: Vec<(stability::Trial, usize)>,
+    /// Set while a feed's stability test runs for the split that follows
+    /// (`stability::stability_for_split`): trials stop once they prove instability.
+    pub(crate) rough_stop: bool,
     nc: usize,
 }
 

@@ -201,6 +201,28 @@ pub(crate) fn stability_with_known<M: FluidModel + ?Sized>(
     stability_impl(model, t, p, n, RootChoice::Stable, opts, &[], Some(known), ws, res)
 }
 
+/// As [`stability_with`] (with `opts.early_exit`), for a feed whose two-phase split follows:
+/// a trial stops as soon as it proves instability with a residual below 1e-3 — tm < 0 at any W
+/// already proves it (Michelsen, Fluid Phase Equilib. 9 (1982) 1–19) — and its amounts are the
+/// split's initial estimate rather than a stationary point converged to the tolerance. Only
+/// points with tm below −1e-3 stop early (common practice, no source: the split's own
+/// iterations converge the rest at half the cost of a trial's per component pair), so a feed
+/// close to its phase boundary still gets a converged point.
+pub(crate) fn stability_for_split<M: FluidModel + ?Sized>(
+    model: &M,
+    t: f64,
+    p: f64,
+    n: &[f64],
+    opts: &StabilityOptions,
+    ws: &mut EquilibriumWork,
+    res: &mut StabilityResult,
+) -> Result<()> {
+    ws.rough_stop = opts.early_exit;
+    let out = stability_impl(model, t, p, n, RootChoice::Stable, opts, &[], None, ws, res);
+    ws.rough_stop = false;
+    out
+}
+
 #[allow(clippy::too_many_arguments)]
 fn stability_impl<M: FluidModel + ?Sized>(
     model: &M,
@@ -501,7 +523,7 @@ fn run_trial<M: FluidModel + ?Sized>(
         if known && err >= opts.tolerance && heading_to(bk) {
             return Ok(outcome(TrialStatus::Trivial));
         }
-        if err < opts.tolerance {
+        if err < opts.tolerance || (ws.rough_stop && err < 1e-3 && tm < -1e-3) {
             return Ok(outcome(TrialStatus::Converged));
         }
         // A trial that has settled next to a stationary point of clearly positive distance

@@ -76,6 +76,8 @@ pub struct EquilibriumWork {
     /// Set while a feed's stability test runs for the split that follows
     /// (`stability::stability_for_split`): trials stop once they prove instability.
     pub(crate) rough_stop: bool,
+    /// Storage of stationary points from earlier tests, reused by the next ones.
+    pub(crate) spare_points: Vec<stability::StationaryPoint>,
     nc: usize,
 }
 

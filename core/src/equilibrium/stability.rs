@@ -241,7 +241,9 @@ fn stability_impl<M: FluidModel + ?Sized>(
     let nc = model.num_components();
     let ntot = check::amounts(n, nc)?;
     ws.resize(nc);
-    res.points.clear();
+    // The previous points' storage is kept for the points of this test (no allocation once
+    // warm).
+    ws.spare_points.append(&mut res.points);
     res.iterations = 0;
     res.trivial_trials = 0;
     res.unconverged_trials = 0;
@@ -347,7 +349,7 @@ fn stability_impl<M: FluidModel + ?Sized>(
     Ok(())
 }
 
-fn record_point(res: &mut StabilityResult, ws: &EquilibriumWork, nc: usize, outcome: TrialOutcome) {
+fn record_point(res: &mut StabilityResult, ws: &mut EquilibriumWork, nc: usize, outcome: TrialOutcome) {
     let sw: f64 = ws.w.iter().sum();
     // Merge with an existing point of the same composition.
     for pt in res.points.iter_mut() {
@@ -361,14 +363,21 @@ fn record_point(res: &mut StabilityResult, ws: &EquilibriumWork, nc: usize, outc
             return;
         }
     }
-    let composition: Vec<f64> = ws.w.iter().map(|w| w / sw).collect();
-    res.points.push(StationaryPoint {
-        composition,
-        amounts: ws.w.clone(),
-        tpd: outcome.tpd,
-        liquid_like: outcome.liquid_like,
-        iterations: outcome.iterations,
+    let mut pt = ws.spare_points.pop().unwrap_or_else(|| StationaryPoint {
+        composition: Vec::with_capacity(nc),
+        amounts: Vec::with_capacity(nc),
+        tpd: 0.0,
+        liquid_like: false,
+        iterations: 0,
     });
+    pt.composition.clear();
+    pt.composition.extend(ws.w.iter().map(|w| w / sw));
+    pt.amounts.clear();
+    pt.amounts.extend_from_slice(&ws.w);
+    pt.tpd = outcome.tpd;
+    pt.liquid_like = outcome.liquid_like;
+    pt.iterations = outcome.iterations;
+    res.points.push(pt);
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -455,7 +464,7 @@ fn run_trial<M: FluidModel + ?Sized>(
 ) -> Result<TrialOutcome> {
     let nc = ws.sz.len();
     let mut iterations = 0;
-    let mut tm_prev = f64::INFINITY;
+    let (mut tm_prev, mut tm_prev2) = (f64::INFINITY, f64::INFINITY);
     // The residuals of the last two iterations.
     let (mut err_prev, mut err_prev2) = (f64::INFINITY, f64::INFINITY);
     let mut last_tpd = f64::INFINITY;
@@ -527,9 +536,15 @@ fn run_trial<M: FluidModel + ?Sized>(
             return Ok(outcome(TrialStatus::Converged));
         }
         // A trial that has settled next to a stationary point of clearly positive distance
-        // (tm ≈ 1 − ΣW, tm no longer falling) cannot prove instability: stop it there
-        // (common practice, no source).
-        if iterations >= 4 && tm > 1e-2 && (tm - (1.0 - sw)).abs() < 1e-2 * tm && (tm_prev - tm).abs() < 1e-2 * tm {
+        // (tm ≈ 1 − ΣW, tm no longer falling) cannot prove instability: stop it there. "No
+        // longer falling": the last fall below 1 % of tm, or falls shrinking by a ratio
+        // q < 1/2 whose geometric remainder, ten times over, leaves more than half of tm
+        // (common practice, no source; tm never rises under successive substitution).
+        let (fall, fall_before) = (tm_prev - tm, tm_prev2 - tm_prev);
+        let q = fall / fall_before;
+        let settled = (iterations >= 4 && fall.abs() < 1e-2 * tm)
+            || (iterations >= 3 && fall >= 0.0 && q < 0.5 && tm - 10.0 * fall * q / (1.0 - q) > 0.5 * tm);
+        if tm > 1e-2 && (tm - (1.0 - sw)).abs() < 1e-2 * tm && settled {
             return Ok(outcome(TrialStatus::Converged));
         }
         if !newton {
@@ -539,7 +554,7 @@ fn run_trial<M: FluidModel + ?Sized>(
                     ws.w[i] = ws.k[i].exp();
                 }
             }
-            tm_prev = tm;
+            (tm_prev2, tm_prev) = (tm_prev, tm);
             (err_prev2, err_prev) = (err_prev, err);
             continue;
         }
@@ -613,7 +628,7 @@ fn run_trial<M: FluidModel + ?Sized>(
                 }
             }
         }
-        tm_prev = tm;
+        (tm_prev2, tm_prev) = (tm_prev, tm);
         (err_prev2, err_prev) = (err_prev, err);
     }
     Ok(TrialOutcome {

@@ -451,7 +451,16 @@ impl FlashContext {
             early_exit: true,
             ..opts.stability
         };
-        stability_for_split(model, t, p, &z, &sopts, &mut self.ws, &mut self.stab)?;
+        stability_for_split(
+            model,
+            t,
+            p,
+            &z,
+            RootChoice::Stable,
+            &sopts,
+            &mut self.ws,
+            &mut self.stab,
+        )?;
         self.feed_evaluated = true;
         diag.stability_iterations = self.stab.iterations;
         if self.stab.stable {
@@ -636,7 +645,17 @@ impl FlashContext {
             early_exit: true,
             ..opts.stability
         };
-        stability_with_known(model, t, p, x, &sopts, y, &mut self.ws, &mut self.cert)?;
+        stability_with_known(
+            model,
+            t,
+            p,
+            x,
+            RootChoice::Stable,
+            &sopts,
+            &[y],
+            &mut self.ws,
+            &mut self.cert,
+        )?;
         diag.certificate_iterations += self.cert.iterations;
         diag.certificate = Some(self.cert.min_tpd);
         Ok(())

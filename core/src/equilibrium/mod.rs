@@ -76,6 +76,10 @@ pub struct EquilibriumWork {
     /// Set while a feed's stability test runs for the split that follows
     /// (`stability::stability_for_split`): trials stop once they prove instability.
     pub(crate) rough_stop: bool,
+    /// Known stationary points of zero distance of a stability test (mole fractions, `nc`
+    /// per point) and their logarithms.
+    pub(crate) known: Vec<f64>,
+    pub(crate) known_ln: Vec<f64>,
     /// Storage of stationary points from earlier tests, reused by the next ones.
     pub(crate) spare_points: Vec<stability::StationaryPoint>,
     nc: usize,

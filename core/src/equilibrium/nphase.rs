@@ -41,7 +41,7 @@
 
 use super::EquilibriumWork;
 use super::flash::{Diagnostics, FlashResult, Phase};
-use super::stability::{StabilityOptions, StabilityResult, stability_on};
+use super::stability::{StabilityOptions, StabilityResult, stability_for_split, stability_on, stability_with_known};
 use crate::error::{Error, Result, check, num};
 use crate::model::{FluidModel, FugacityWork, LnPhi, Need, PhaseKind, RootChoice};
 use crate::numerics::linalg::shifted_cholesky_solve;
@@ -981,8 +981,21 @@ impl Solver {
             early_exit: true,
             ..plan.stability
         };
+        // The other phases of the set are stationary points of zero distance: trials heading
+        // to one are abandoned.
         let x = std::mem::take(&mut self.x[big]);
-        let out = stability_on(model, t, p, &x, plan.root, &sopts, &[], &mut self.ws, &mut self.stab);
+        let (known, m) = other_phases(&self.x, self.np, big);
+        let out = stability_with_known(
+            model,
+            t,
+            p,
+            &x,
+            plan.root,
+            &sopts,
+            &known[..m],
+            &mut self.ws,
+            &mut self.stab,
+        );
         self.x[big] = x;
         out?;
         diag.certificate_iterations += self.stab.iterations;
@@ -994,7 +1007,18 @@ impl Solver {
                 ..plan.stability
             };
             let x = std::mem::take(&mut self.x[big]);
-            let out = stability_on(model, t, p, &x, plan.root, &sopts, &[], &mut self.ws, &mut self.stab);
+            let (known, m) = other_phases(&self.x, self.np, big);
+            let out = stability_with_known(
+                model,
+                t,
+                p,
+                &x,
+                plan.root,
+                &sopts,
+                &known[..m],
+                &mut self.ws,
+                &mut self.stab,
+            );
             self.x[big] = x;
             out?;
             diag.certificate_iterations += self.stab.iterations;
@@ -1588,7 +1612,13 @@ fn cold<M: FluidModel + ?Sized>(
             ..plan.stability
         };
         let z = std::mem::take(&mut s.z);
-        let out = stability_on(model, t, p, &z, plan.root, &sopts, &[], &mut s.ws, &mut s.stab);
+        // The first pass stops each trial once it proves instability (its amounts start the
+        // split); the complete one converges every trial.
+        let out = if complete {
+            stability_on(model, t, p, &z, plan.root, &sopts, &[], &mut s.ws, &mut s.stab)
+        } else {
+            stability_for_split(model, t, p, &z, plan.root, &sopts, &mut s.ws, &mut s.stab)
+        };
         s.z = z;
         out?;
         diag.stability_iterations += s.stab.iterations;
@@ -1691,6 +1721,20 @@ pub fn flash_multiphase<M: FluidModel + ?Sized>(
 ) -> Result<FlashResult> {
     let mut ctx = MultiphaseContext::new(model.num_components());
     ctx.flash(model, t, p, n, opts).cloned()
+}
+
+/// The compositions of the first `np` phases except phase `skip`, up to eight of them (a
+/// stability trial heading to a phase not listed is only not abandoned early).
+fn other_phases(xs: &[Vec<f64>], np: usize, skip: usize) -> ([&[f64]; 8], usize) {
+    let mut buf: [&[f64]; 8] = [&[]; 8];
+    let mut m = 0;
+    for (k, xk) in xs.iter().enumerate().take(np) {
+        if k != skip && m < buf.len() {
+            buf[m] = xk;
+            m += 1;
+        }
+    }
+    (buf, m)
 }
 
 #[cfg(test)]

@@ -177,48 +177,52 @@ pub(crate) fn stability_on<M: FluidModel + ?Sized>(
     ws: &mut EquilibriumWork,
     res: &mut StabilityResult,
 ) -> Result<()> {
-    stability_impl(model, t, p, n, root, opts, extra_trials, None, ws, res)
+    stability_impl(model, t, p, n, root, opts, extra_trials, &[], ws, res)
 }
 
-/// As [`stability_with`], for a phase in equilibrium with another phase of mole fractions
-/// `known` (a converged split). That phase is a second stationary point of zero
-/// tangent-plane distance (tm = 1 − Σ y_i = 0 where ln y_i + ln φ_i(y) = d_i), so a trial that
-/// approaches it is abandoned by the test that abandons a trial approaching the phase itself
-/// (Michelsen & Mollerup 2007, ch. 10: near a zero of tm, tm ≈ β/2 with
+/// As [`stability_on`], for a phase in equilibrium with other phases of mole fractions
+/// `known` (a converged split or phase set). Each of those phases is a further stationary
+/// point of zero tangent-plane distance (tm = 1 − Σ y_i = 0 where ln y_i + ln φ_i(y) = d_i),
+/// so a trial that approaches one is abandoned by the test that abandons a trial approaching
+/// the phase itself (Michelsen & Mollerup 2007, ch. 10: near a zero of tm, tm ≈ β/2 with
 /// β = Σ (W_i − y_i)(ln W_i − ln y_i)), applied at y. The test's trials are those of `opts`;
-/// only the iterations that lead back to the split's own phase are saved.
+/// only the iterations that lead back to the set's own phases are saved. A known phase lacking
+/// a component present in the tested one is not used.
 #[allow(clippy::too_many_arguments)]
 pub(crate) fn stability_with_known<M: FluidModel + ?Sized>(
     model: &M,
     t: f64,
     p: f64,
     n: &[f64],
+    root: RootChoice,
     opts: &StabilityOptions,
-    known: &[f64],
+    known: &[&[f64]],
     ws: &mut EquilibriumWork,
     res: &mut StabilityResult,
 ) -> Result<()> {
-    stability_impl(model, t, p, n, RootChoice::Stable, opts, &[], Some(known), ws, res)
+    stability_impl(model, t, p, n, root, opts, &[], known, ws, res)
 }
 
-/// As [`stability_with`] (with `opts.early_exit`), for a feed whose two-phase split follows:
+/// As [`stability_on`] (with `opts.early_exit`), for a feed whose split follows:
 /// a trial stops as soon as it proves instability with a residual below 1e-3 — tm < 0 at any W
 /// already proves it (Michelsen, Fluid Phase Equilib. 9 (1982) 1–19) — and its amounts are the
 /// split's initial estimate rather than a stationary point converged to the tolerance. Only
 /// points with tm below −1e-3 stop early (common practice, no source: the split's own
 /// iterations converge the rest at half the cost of a trial's per component pair), so a feed
 /// close to its phase boundary still gets a converged point.
+#[allow(clippy::too_many_arguments)]
 pub(crate) fn stability_for_split<M: FluidModel + ?Sized>(
     model: &M,
     t: f64,
     p: f64,
     n: &[f64],
+    root: RootChoice,
     opts: &StabilityOptions,
     ws: &mut EquilibriumWork,
     res: &mut StabilityResult,
 ) -> Result<()> {
     ws.rough_stop = opts.early_exit;
-    let out = stability_impl(model, t, p, n, RootChoice::Stable, opts, &[], None, ws, res);
+    let out = stability_impl(model, t, p, n, root, opts, &[], &[], ws, res);
     ws.rough_stop = false;
     out
 }
@@ -232,7 +236,7 @@ fn stability_impl<M: FluidModel + ?Sized>(
     root: RootChoice,
     opts: &StabilityOptions,
     extra_trials: &[&[f64]],
-    known: Option<&[f64]>,
+    known: &[&[f64]],
     ws: &mut EquilibriumWork,
     res: &mut StabilityResult,
 ) -> Result<()> {
@@ -260,19 +264,23 @@ fn stability_impl<M: FluidModel + ?Sized>(
         };
     }
     model.estimate_ln_k(t, p, &mut ws.lnk);
-    // The known stationary point (mole fractions in `ws.y`, their logarithms in `ws.hist[2]`),
-    // used only if every component present in the phase is present in it.
-    let known = known.is_some_and(|y| {
-        let ok = (0..nc).all(|i| ws.sz[i] <= 0.0 || y[i] > 0.0);
-        if ok {
-            let sy: f64 = y.iter().sum();
-            for i in 0..nc {
-                ws.y[i] = y[i] / sy;
-                ws.hist[2][i] = if ws.y[i] > 0.0 { ws.y[i].ln() } else { 0.0 };
-            }
+    // The known stationary points (mole fractions in `ws.known`, their logarithms in
+    // `ws.known_ln`, `nc` entries each), each used only if every component present in the
+    // phase is present in it.
+    ws.known.clear();
+    ws.known_ln.clear();
+    for y in known {
+        if y.len() != nc || !(0..nc).all(|i| ws.sz[i] <= 0.0 || y[i] > 0.0) {
+            continue;
         }
-        ok
-    });
+        let sy: f64 = y.iter().sum();
+        for &yi in y.iter() {
+            let yn = yi / sy;
+            ws.known.push(yn);
+            ws.known_ln.push(if yn > 0.0 { yn.ln() } else { 0.0 });
+        }
+    }
+    let known = ws.known.len() / nc.max(1);
     let trials = build_trials(model, opts, nc, ws);
     for k in 0..trials + extra_trials.len() {
         // Initial W for trial k.
@@ -451,15 +459,15 @@ struct TrialOutcome {
     liquid_like: bool,
 }
 
-/// Runs one trial from `ws.w`; on return `ws.w` holds the final W. With `known`, `ws.y` and
-/// `ws.hist[2]` hold a second stationary point of zero distance and its logarithms.
+/// Runs one trial from `ws.w`; on return `ws.w` holds the final W. `ws.known` and
+/// `ws.known_ln` hold `known` further stationary points of zero distance and their logarithms.
 fn run_trial<M: FluidModel + ?Sized>(
     model: &M,
     t: f64,
     p: f64,
     root: RootChoice,
     opts: &StabilityOptions,
-    known: bool,
+    known: usize,
     ws: &mut EquilibriumWork,
 ) -> Result<TrialOutcome> {
     let nc = ws.sz.len();
@@ -486,7 +494,7 @@ fn run_trial<M: FluidModel + ?Sized>(
         evaluated = false;
         let liquid_like = ws.phi_b.liquid_like;
         // Residuals h_i = ln W_i + ln φ_i(W) − d_i, and tm.
-        let (mut err, mut tm, mut sw, mut bt, mut bk) = (0.0f64, 1.0, 0.0, 0.0, 0.0);
+        let (mut err, mut tm, mut sw, mut bt) = (0.0f64, 1.0, 0.0, 0.0);
         for i in 0..nc {
             if ws.sz[i] > 0.0 {
                 let lw = ws.k[i];
@@ -496,9 +504,6 @@ fn run_trial<M: FluidModel + ?Sized>(
                 tm += ws.w[i] * (h - 1.0);
                 sw += ws.w[i];
                 bt += (ws.w[i] - ws.sz[i]) * (lw - ws.lnz[i]);
-                if known {
-                    bk += (ws.w[i] - ws.y[i]) * (lw - ws.hist[2][i]);
-                }
             } else {
                 ws.g[i] = 0.0;
             }
@@ -528,9 +533,18 @@ fn run_trial<M: FluidModel + ?Sized>(
         if heading_to(bt) {
             return Ok(outcome(TrialStatus::Trivial));
         }
-        // The same test at the known stationary point y of zero distance.
-        if known && err >= opts.tolerance && heading_to(bk) {
-            return Ok(outcome(TrialStatus::Trivial));
+        // The same test at each known stationary point y of zero distance.
+        if err >= opts.tolerance {
+            for m in 0..known {
+                let (y, lny) = (&ws.known[m * nc..(m + 1) * nc], &ws.known_ln[m * nc..(m + 1) * nc]);
+                let bk: f64 = (0..nc)
+                    .filter(|&i| ws.sz[i] > 0.0)
+                    .map(|i| (ws.w[i] - y[i]) * (ws.k[i] - lny[i]))
+                    .sum();
+                if heading_to(bk) {
+                    return Ok(outcome(TrialStatus::Trivial));
+                }
+            }
         }
         if err < opts.tolerance || (ws.rough_stop && err < 1e-3 && tm < -1e-3) {
             return Ok(outcome(TrialStatus::Converged));

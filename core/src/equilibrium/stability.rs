@@ -678,3 +678,88 @@ fn eval_trial<M: FluidModel + ?Sized>(
     }
     Ok(())
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::equilibrium::{FlashOptions, flash_pt};
+    use crate::model::{CubicEos, CubicKind};
+    use crate::substance::DataBank;
+
+    fn gas() -> CubicEos {
+        let comps = DataBank::embedded()
+            .get_many(&["nitrogen", "methane", "ethane", "propane", "n-butane", "n-hexane"])
+            .unwrap();
+        CubicEos::new(CubicKind::PengRobinson, comps).unwrap()
+    }
+
+    const Z: [f64; 6] = [0.02, 0.70, 0.10, 0.08, 0.06, 0.04];
+
+    /// The early stop of a feed's test for the split gives the verdict of the complete test
+    /// on every state of a (T, p) grid across the phase envelope, in no more iterations.
+    #[test]
+    fn stop_for_split_keeps_the_verdict() {
+        let m = gas();
+        let (mut unstable, mut stable) = (0, 0);
+        for ti in 0..=20 {
+            for &p in &[1e6, 3e6, 6e6, 9e6] {
+                let t = 180.0 + 10.0 * ti as f64;
+                let full = stability(&m, t, p, &Z, &StabilityOptions::default()).unwrap();
+                let opts = StabilityOptions {
+                    early_exit: true,
+                    ..Default::default()
+                };
+                let mut ws = EquilibriumWork::new(6);
+                let mut res = StabilityResult::default();
+                stability_for_split(&m, t, p, &Z, RootChoice::Stable, &opts, &mut ws, &mut res).unwrap();
+                assert_eq!(res.stable, full.stable, "verdicts differ at {t} K, {p} Pa");
+                assert!(
+                    res.iterations <= full.iterations,
+                    "{} > {} at {t} K, {p} Pa",
+                    res.iterations,
+                    full.iterations
+                );
+                if full.stable {
+                    stable += 1;
+                } else {
+                    unstable += 1;
+                }
+            }
+        }
+        assert!(
+            stable > 10 && unstable > 10,
+            "the grid must cross the envelope: {stable} / {unstable}"
+        );
+    }
+
+    /// A test of one phase of a converged split that abandons trials heading to the other
+    /// phase gives the verdict of the complete test, and the split's phase is stable.
+    #[test]
+    fn known_phase_keeps_the_certificate() {
+        let m = gas();
+        let opts = FlashOptions {
+            certificate: false,
+            ..Default::default()
+        };
+        let mut checked = 0;
+        for ti in 0..=12 {
+            let t = 190.0 + 10.0 * ti as f64;
+            let r = flash_pt(&m, t, 3e6, &Z, &opts).unwrap();
+            if r.phases.len() != 2 {
+                continue;
+            }
+            let (x, y) = (&r.phases[1].composition, &r.phases[0].composition);
+            for (a, b) in [(x, y), (y, x)] {
+                let full = stability(&m, t, 3e6, a, &StabilityOptions::default()).unwrap();
+                let mut ws = EquilibriumWork::new(6);
+                let mut res = StabilityResult::default();
+                let sopts = StabilityOptions::default();
+                stability_with_known(&m, t, 3e6, a, RootChoice::Stable, &sopts, &[b], &mut ws, &mut res).unwrap();
+                assert!(full.stable && res.stable, "phase of the split unstable at {t} K");
+                assert!(res.iterations <= full.iterations);
+                checked += 1;
+            }
+        }
+        assert!(checked >= 6, "only {checked} phases checked");
+    }
+}

@@ -869,6 +869,27 @@ impl FlashContext {
         }
     }
 
+    /// Sets the Newton point to v0 + Δv, l0 − Δv, except that a component whose amount in a
+    /// phase the step would make non-positive moves in the logarithm of that amount:
+    /// v_i = v0_i exp(Δv_i/v0_i) (or l_i = l0_i exp(−Δv_i/l0_i)), the other phase taking the
+    /// rest of the component's feed.
+    fn move_newton_log(&mut self) {
+        for i in 0..self.nc {
+            let (v0, l0, dv) = (self.newton_v0[i], self.newton_l0[i], self.ws.step[i]);
+            let (v, l) = if dv < 0.0 && v0 + dv <= 0.0 {
+                let v = v0 * (dv / v0).exp();
+                (v, l0 + (v0 - v))
+            } else if dv > 0.0 && l0 - dv <= 0.0 {
+                let l = l0 * (-dv / l0).exp();
+                (v0 + (l0 - l), l)
+            } else {
+                (v0 + dv, l0 - dv)
+            };
+            self.newton_v[i] = v;
+            self.newton_l[i] = l;
+        }
+    }
+
     /// Evaluates the split at y-phase amounts `newton_v` with composition derivatives: phase
     /// compositions, ln φ, G, the gradient (into `ws.rhs`, negated) and the residual.
     /// Returns `false` if a phase amount is not positive.
@@ -1063,7 +1084,20 @@ impl FlashContext {
             self.newton_v0.copy_from_slice(&self.newton_v);
             self.newton_l0.copy_from_slice(&self.newton_l);
             let mut accepted = false;
-            for _ in 0..12 {
+            // A full step that would empty a phase of a component asks for a change of its
+            // amount by orders of magnitude (a trace component: the diagonal 1/v_i dominates
+            // its row of H, and Δv_i/v_i ≈ −(ln f_i^y − ln f_i^x)). Cutting the whole step
+            // to the boundary lets that amount fall by a factor of ten per iteration; first
+            // try the full step with such an amount moved in its logarithm instead,
+            // v_i ← v_i exp(Δv_i/v_i) (the same first-order change; likewise l_i), kept if
+            // G falls (common practice, no source).
+            if alpha < 1.0 && !chord {
+                self.move_newton_log();
+                if self.eval_newton_with(model, t, p, need)? && self.split.gibbs <= g0 + 1e-14 * g0.abs().max(1.0) {
+                    accepted = true;
+                }
+            }
+            for _ in 0..if accepted { 0 } else { 12 } {
                 self.move_newton(alpha);
                 if self.eval_newton_with(model, t, p, need)? {
                     let g1 = self.split.gibbs;

@@ -794,7 +794,13 @@ impl Solver {
             // is already there (G then changes by round-off only): the step is kept only if
             // the residual falls, so the answer is the most accurate point reached.
             let roundoff = err0 < 1e-9;
-            for _ in 0..12 {
+            // A step cut by the boundary: first the full step with each amount that would
+            // cross zero moved in its logarithm (as in the two-phase Newton of the PT flash).
+            if alpha < 1.0 && !roundoff {
+                self.move_amounts_log();
+                accepted = self.eval_amounts(model, t, p, need)? && self.gibbs <= g0 + 1e-14 * g0.abs().max(1.0);
+            }
+            for _ in 0..if accepted { 0 } else { 12 } {
                 self.move_amounts(alpha);
                 if self.eval_amounts(model, t, p, need)? {
                     let (g1, err1) = (self.gibbs, self.residual);
@@ -901,6 +907,29 @@ impl Solver {
                 let v = self.var[i * MAXP + k];
                 if v != usize::MAX {
                     self.n[k][i] = self.n0[k][i] + alpha * self.step[v];
+                    rest += self.n[k][i];
+                }
+            }
+            self.n[r][i] = self.z[i] - rest;
+        }
+    }
+
+    /// The full step from `n0`, except that an amount the step would make non-positive moves
+    /// in its logarithm, n_ik = n0_ik exp(Δ_ik/n0_ik) (a trace amount changing by orders of
+    /// magnitude); the reference phase takes the rest of each component's feed.
+    fn move_amounts_log(&mut self) {
+        let (nc, np) = (self.nc, self.np);
+        for i in 0..nc {
+            if self.z[i] <= 0.0 {
+                continue;
+            }
+            let r = self.reference[i];
+            let mut rest = 0.0;
+            for k in 0..np {
+                let v = self.var[i * MAXP + k];
+                if v != usize::MAX {
+                    let (n0, d) = (self.n0[k][i], self.step[v]);
+                    self.n[k][i] = if n0 + d <= 0.0 { n0 * (d / n0).exp() } else { n0 + d };
                     rest += self.n[k][i];
                 }
             }

@@ -1006,33 +1006,13 @@ impl Solver {
         let big = (0..self.np)
             .max_by(|&a, &b| self.beta[a].total_cmp(&self.beta[b]))
             .unwrap_or(0);
-        let sopts = StabilityOptions {
-            early_exit: true,
-            ..plan.stability
-        };
         // The other phases of the set are stationary points of zero distance: trials heading
-        // to one are abandoned.
-        let x = std::mem::take(&mut self.x[big]);
-        let (known, m) = other_phases(&self.x, self.np, big);
-        let out = stability_with_known(
-            model,
-            t,
-            p,
-            &x,
-            plan.root,
-            &sopts,
-            &known[..m],
-            &mut self.ws,
-            &mut self.stab,
-        );
-        self.x[big] = x;
-        out?;
-        diag.certificate_iterations += self.stab.iterations;
-        // A stationary point at a phase of the set is that phase (its distance is of the
-        // order of the residual), not a new one: if the test stopped there, run all trials.
-        if !self.stab.stable && self.is_member(0) {
+        // to one are abandoned. A stationary point at a phase of the set is that phase (its
+        // distance is of the order of the residual), not a new one: if the test that stops at
+        // its first negative point stopped there, run all trials.
+        for early_exit in [true, false] {
             let sopts = StabilityOptions {
-                early_exit: false,
+                early_exit,
                 ..plan.stability
             };
             let x = std::mem::take(&mut self.x[big]);
@@ -1051,6 +1031,9 @@ impl Solver {
             self.x[big] = x;
             out?;
             diag.certificate_iterations += self.stab.iterations;
+            if self.stab.stable || !self.is_member(0) {
+                break;
+            }
         }
         let mut min_tpd = 0.0f64;
         let mut k = 0;

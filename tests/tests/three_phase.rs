@@ -193,6 +193,40 @@ fn context_sweep_through_the_three_phase_region() {
     assert!(flash_pt(&m, T, P, &[0.3, 0.2, 0.5], &bad).is_err());
 }
 
+/// A context flashing along T inside the three-phase region starts each call from the
+/// previous three-phase answer and gives the answers of one-shot flashes.
+#[test]
+fn context_warm_starts_from_a_three_phase_answer() {
+    let m = model(&["methane", "n-hexane", "water"]);
+    let z = [0.3, 0.2, 0.5];
+    let mut ctx = FlashContext::new(3);
+    for k in 0..12 {
+        let t = T + 0.5 * k as f64;
+        let a = ctx.flash(&m, t, P, &z, &three()).unwrap().clone();
+        let b = flash_pt(&m, t, P, &z, &three()).unwrap();
+        assert_eq!(a.phases.len(), 3, "{t} K");
+        assert_eq!(b.phases.len(), 3, "{t} K");
+        assert_eq!(a.diagnostics.warm_start, k > 0, "{t} K");
+        assert!(!b.diagnostics.warm_start);
+        for (pa, pb) in a.phases.iter().zip(&b.phases) {
+            assert_eq!(pa.kind, pb.kind, "{t} K");
+            assert!((pa.fraction - pb.fraction).abs() < 1e-9, "{t} K");
+            for (xa, xb) in pa.composition.iter().zip(&pb.composition) {
+                assert!((xa - xb).abs() < 1e-9, "{t} K");
+            }
+        }
+        assert_equal_fugacities(&ln_fugacities(&m, t, P, &a), 1e-9, "warm");
+        assert!(
+            a.diagnostics.certificate.is_some_and(|c| c > -1e-9),
+            "{t} K: {:?}",
+            a.diagnostics
+        );
+    }
+    // A far jump starts cold.
+    let far = ctx.flash(&m, T + 40.0, P, &z, &three()).unwrap();
+    assert!(!far.diagnostics.warm_start);
+}
+
 /// METHODS §12 B1 (CH4/H2S with SRK, k12 = 0.08, 190 K, 40.53 bar; Michelsen 1982a): a binary
 /// has three phases only on a line of (T, p), so allowing three changes none of the answers:
 /// the same phase counts for all six feeds, and at z = 0.5 the same liquid–liquid split

@@ -27,7 +27,7 @@
 //! other phase are abandoned as trials returning to the phase under test are.
 
 use super::EquilibriumWork;
-use super::nphase::{Plan, Solver};
+use super::nphase::{Plan, Previous, Solver};
 use super::rachford_rice;
 use super::stability::{StabilityOptions, StabilityResult, stability_for_split, stability_with_known};
 use crate::error::{Error, Result, check, num};
@@ -315,6 +315,9 @@ pub struct FlashContext {
     /// The multiphase solver, whose phase set is this call's answer when `multi_used`.
     multi: Solver,
     multi_used: bool,
+    /// The previous call's answer when it had three phases, the start of the next call's
+    /// multiphase solve (with a third phase allowed).
+    multi_prev: Option<Previous>,
     /// Whether `ws.phi_feed` holds ln φ of this call's feed (set by the feed's stability test).
     feed_evaluated: bool,
     result: FlashResult,
@@ -361,6 +364,7 @@ impl FlashContext {
     pub fn reset(&mut self) {
         self.prev_two_phase = false;
         self.prev_factor_valid = false;
+        self.multi_prev = None;
     }
 
     /// The last result (valid after a successful call).
@@ -390,6 +394,7 @@ impl FlashContext {
         }
         let mut diag = Diagnostics::default();
         if let Err(e) = self.solve(model, t, p, n, ntot, opts, &mut diag) {
+            self.multi_prev = None;
             let its = vec![
                 ("stability".into(), diag.stability_iterations),
                 ("SS".into(), diag.ss_iterations),
@@ -415,6 +420,18 @@ impl FlashContext {
         let mut found = false;
         self.feed_evaluated = false;
         self.multi_used = false;
+        // A three-phase answer last time: the phase set starts from it (no stability test of
+        // the feed, the answer certified by the multiphase solver as on its cold path).
+        if opts.max_phases >= 3
+            && let Some(prev) = &self.multi_prev
+        {
+            self.multi.resize(self.nc);
+            self.multi.set_feed(&self.ws.z);
+            if prev.warm_start(&mut self.multi, model, t, p, &three_phase_plan(opts), diag) {
+                self.multi_used = true;
+                return self.finish(model, t, p, n, ntot, true, opts, diag.clone());
+            }
+        }
         if self.prev_two_phase {
             self.ws.lnk.copy_from_slice(&self.prev_lnk);
             let out = self.two_phase(model, t, p, opts, true, diag)?;
@@ -1204,9 +1221,10 @@ impl FlashContext {
         }
         if self.multi_used {
             // Vapour first, then the liquids by increasing density (`Liquid2`, `Liquid`).
-            self.multi
-                .write(model, t, p, ntot, &three_phase_plan(opts), &mut diag, r)?;
+            let plan = three_phase_plan(opts);
+            self.multi.write(model, t, p, ntot, &plan, &mut diag, r)?;
             self.prev_two_phase = false;
+            Previous::record(&mut self.multi_prev, &self.multi, t, p, &plan);
         } else if two {
             let s = &self.best;
             diag.residual = s.residual;
@@ -1240,7 +1258,9 @@ impl FlashContext {
                 ph.z = phi.z;
             }
             self.prev_two_phase = true;
+            self.multi_prev = None;
         } else {
+            self.multi_prev = None;
             let ws = &mut self.ws;
             let z = &ws.z;
             // The feed's stability test has evaluated it already at this (T, p).

@@ -1469,13 +1469,75 @@ pub struct MultiphaseContext {
 }
 
 #[derive(Debug, Clone, Default)]
-struct Previous {
+pub(crate) struct Previous {
     t: f64,
     p: f64,
     z: Vec<f64>,
     np: usize,
     x: [Vec<f64>; MAXP],
     plan_root: Option<RootChoice>,
+}
+
+impl Previous {
+    /// Remembers the solver's answer at (T (K), p (Pa)) in `slot` when it has more than one
+    /// phase (else forgets it), for a warm start of the next call.
+    pub(crate) fn record(slot: &mut Option<Previous>, s: &Solver, t: f64, p: f64, plan: &Plan) {
+        if s.np <= 1 {
+            *slot = None;
+            return;
+        }
+        let prev = slot.get_or_insert_with(Previous::default);
+        prev.t = t;
+        prev.p = p;
+        prev.z.clear();
+        prev.z.extend_from_slice(&s.z);
+        prev.np = s.np;
+        for k in 0..s.np {
+            prev.x[k].clear();
+            prev.x[k].extend_from_slice(&s.x[k]);
+        }
+        prev.plan_root = Some(plan.root);
+    }
+
+    /// Starts the solver (its feed already set) from this answer's phase compositions when
+    /// the call is close to it in T, p and feed. On `true` the phase set is solved and `diag`
+    /// holds its work (marked as a warm start); on `false` the work spent, if any, has been
+    /// added to `diag` and the caller starts cold.
+    pub(crate) fn warm_start<M: FluidModel + ?Sized>(
+        &self,
+        s: &mut Solver,
+        model: &M,
+        t: f64,
+        p: f64,
+        plan: &Plan,
+        diag: &mut Diagnostics,
+    ) -> bool {
+        let close = self.plan_root == Some(plan.root)
+            && self.np <= plan.limit
+            && self.z.len() == s.z.len()
+            && (t - self.t).abs() <= WARM_DT * self.t
+            && (p - self.p).abs() <= WARM_DP * self.p
+            && self
+                .z
+                .iter()
+                .zip(&s.z)
+                .all(|(a, b)| (a - b).abs() <= WARM_DZ && (*a > 0.0) == (*b > 0.0));
+        if !close {
+            return false;
+        }
+        let init: [&[f64]; MAXP] = std::array::from_fn(|k| self.x[k].as_slice());
+        s.start_from(&init[..self.np]);
+        let mut d = Diagnostics::default();
+        if let Ok(true) = s.solve_and_add(model, t, p, plan, true, &mut d) {
+            d.warm_start = true;
+            *diag = d;
+            return true;
+        }
+        // The cold path follows: count the work spent.
+        diag.ss_iterations += d.ss_iterations;
+        diag.newton_iterations += d.newton_iterations;
+        false
+    }
 }
 
 /// How close a call must be to the previous answer for a warm start: relative changes of T
@@ -1548,21 +1610,7 @@ impl MultiphaseContext {
         r.tie_line = None;
         r.diagnostics = diag;
         // Remember a multiphase answer for the next call.
-        if self.solver.np > 1 {
-            let prev = self.prev.get_or_insert_with(Previous::default);
-            prev.t = t;
-            prev.p = p;
-            prev.z.clear();
-            prev.z.extend_from_slice(&self.solver.z);
-            prev.np = self.solver.np;
-            for k in 0..self.solver.np {
-                prev.x[k].clear();
-                prev.x[k].extend_from_slice(&self.solver.x[k]);
-            }
-            prev.plan_root = Some(plan.root);
-        } else {
-            self.prev = None;
-        }
+        Previous::record(&mut self.prev, &self.solver, t, p, &plan);
         Ok(&self.result)
     }
 
@@ -1575,29 +1623,10 @@ impl MultiphaseContext {
         diag: &mut Diagnostics,
     ) -> Result<()> {
         let s = &mut self.solver;
-        if let Some(prev) = &self.prev {
-            let close = prev.plan_root == Some(plan.root)
-                && prev.np <= plan.limit
-                && (t - prev.t).abs() <= WARM_DT * prev.t
-                && (p - prev.p).abs() <= WARM_DP * prev.p
-                && prev
-                    .z
-                    .iter()
-                    .zip(&s.z)
-                    .all(|(a, b)| (a - b).abs() <= WARM_DZ && (*a > 0.0) == (*b > 0.0));
-            if close {
-                let init: [&[f64]; MAXP] = std::array::from_fn(|k| prev.x[k].as_slice());
-                s.start_from(&init[..prev.np]);
-                let mut d = Diagnostics::default();
-                if let Ok(true) = s.solve_and_add(model, t, p, plan, true, &mut d) {
-                    d.warm_start = true;
-                    *diag = d;
-                    return Ok(());
-                }
-                // Fall back to the cold path, counting the work spent.
-                diag.ss_iterations += d.ss_iterations;
-                diag.newton_iterations += d.newton_iterations;
-            }
+        if let Some(prev) = &self.prev
+            && prev.warm_start(s, model, t, p, plan, diag)
+        {
+            return Ok(());
         }
         cold(model, t, p, plan, s, diag)
     }

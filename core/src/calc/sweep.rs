@@ -414,3 +414,32 @@ mod tests {
         assert_eq!(calls, 0);
     }
 }
+
+#[cfg(test)]
+mod empty_feed {
+    use super::*;
+    use crate::model::{CubicEos, CubicKind};
+    use crate::substance::DataBank;
+
+    /// Every calculation refuses an empty feed at its input check: a driver that is being
+    /// cancelled gives the rest of its run empty feeds so that the run ends at once.
+    #[test]
+    fn every_calculation_refuses_an_empty_feed() {
+        let comps = DataBank::embedded().get_many(&["methane", "ethane"]).unwrap();
+        let m: Model = CubicEos::new(CubicKind::PengRobinson, comps).unwrap().into();
+        for c in super::super::CALCULATIONS {
+            let plan = Plan::new(c.name, None).unwrap();
+            let args: Vec<f64> = c
+                .arguments
+                .iter()
+                .map(|a| match a.unit {
+                    "K" => 250.0,
+                    "Pa" => 2.0e6,
+                    _ => 1.0,
+                })
+                .collect();
+            let e = plan.run(&mut Workspace::default(), &m, &args, &[]).unwrap_err();
+            assert_eq!(e.kind(), crate::ErrorKind::InvalidInput, "{}: {e}", c.name);
+        }
+    }
+}

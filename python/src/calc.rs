@@ -9,7 +9,8 @@ use numpy::ndarray::{ArrayD, IxDyn};
 use numpy::{IntoPyArray, PyReadonlyArray1, PyReadonlyArray2, PyUntypedArrayMethods};
 use pyo3::prelude::*;
 use pyo3::types::{PyDict, PyList, PyTuple};
-use tieline::calc::{ColumnData, Columns, Plan, Record, Value, Workspace};
+use tieline::calc::{ColumnData, Columns, Plan, Record, Value, Workspace, run_points};
+use tieline::equilibrium::batch::{BatchLayout, Partition, WarmStart, run_len};
 use tieline::model::Model;
 
 /// A calculation's result: named fields with SI units, read as attributes (numbers as float
@@ -183,11 +184,13 @@ pub fn calc_point(
 
 /// Runs calculation `name` at many points in parallel (GIL released): `args` is a list of
 /// 1-D arrays, one per scalar argument, all of the same length; `amounts` has one row shared
-/// by every point or one row per point. Points are taken in blocks of `block` with warm starts
-/// inside a block. Returns `{"columns": {name: (array, unit, shape)}, "ok": bool array,
-/// "failures": [(index, exception)]}`; arrays are flat, point-major.
+/// by every point or one row per point. The layout is that of the core's flash batch: blocks
+/// of `block_len(npts)` points (16 to 64) unless `block` fixes it, each computed by
+/// `tieline::calc::run_points` with warm starts between near neighbours only. Returns
+/// `{"columns": {name: (array, unit, shape)}, "ok": bool array, "failures": [(index,
+/// exception)]}`; arrays are flat, point-major.
 #[pyfunction]
-#[pyo3(signature = (model, name, args, amounts, options_json=None, block=64, threads=None, progress=None, raise_errors=true))]
+#[pyo3(signature = (model, name, args, amounts, options_json=None, block=None, threads=None, progress=None, raise_errors=true))]
 #[allow(clippy::too_many_arguments)]
 pub fn calc_sweep<'py>(
     py: Python<'py>,
@@ -196,7 +199,7 @@ pub fn calc_sweep<'py>(
     args: Vec<PyReadonlyArray1<'py, f64>>,
     amounts: PyReadonlyArray2<'py, f64>,
     options_json: Option<&str>,
-    block: usize,
+    block: Option<usize>,
     threads: Option<usize>,
     progress: Option<Bound<'py, PyAny>>,
     raise_errors: bool,
@@ -231,31 +234,52 @@ pub fn calc_sweep<'py>(
             &format!("{} values for {npts} points", c.len()),
         ));
     }
-    if block == 0 {
+    if block == Some(0) {
         return Err(errors::invalid(
             py,
             "block",
             "0; a block of at least 1 point is required",
         ));
     }
+    // The layout of `flash_sweep` and the core's `flash_batch`: it depends on the points
+    // alone, so the results do not depend on the thread count.
+    let layout = BatchLayout {
+        partition: block.map_or(Partition::Auto, Partition::Blocks),
+        warm_start: WarmStart::Near,
+    };
     let (f, per_point) = feeds(py, &amounts, npts, nc)?;
-    let feed = |i: usize| if per_point { &f[i * nc..(i + 1) * nc] } else { f };
+    let block = run_len(&layout, npts, parallel::effective_threads(threads));
     let nblocks = npts.div_ceil(block);
     let blocks = parallel::run(py, nblocks, npts, threads, progress.as_ref(), |b, ctl| {
         let mut ws = Workspace::default();
-        let mut a = vec![0.0; want];
-        let (start, end) = (b * block, ((b + 1) * block).min(npts));
-        let mut out = Vec::with_capacity(end - start);
-        for i in start..end {
+        let range = b * block..((b + 1) * block).min(npts);
+        let mut out = Vec::with_capacity(range.len());
+        // Once the sweep is cancelled its results are discarded: the remaining points of the
+        // block get an empty feed, which every calculation refuses at its input check.
+        let feed = |i: usize| {
             if ctl.cancelled() {
-                out.push(Err(tieline::Error::NoSolution("cancelled".into())));
-                continue;
+                &[][..]
+            } else if per_point {
+                &f[i * nc..(i + 1) * nc]
+            } else {
+                f
             }
-            for (k, c) in cols.iter().enumerate() {
-                a[k] = c[i];
-            }
-            out.push(plan.run(&mut ws, m, &a, feed(i)));
-            ctl.advance(1);
+        };
+        let run = run_points(
+            &plan,
+            &mut ws,
+            m,
+            &cols,
+            feed,
+            range.clone(),
+            layout.warm_start,
+            |_, r| {
+                out.push(r);
+                ctl.advance(1);
+            },
+        );
+        if let Err(e) = run {
+            out = range.map(|_| Err(e.clone())).collect();
         }
         out
     })?;

@@ -23,8 +23,10 @@
 //! ```
 
 mod record;
+mod sweep;
 
 pub use record::{Column, ColumnData, Columns, Field, Record, Value};
+pub use sweep::{NEAR_ARGUMENT, near_point, near_tolerance, run_points};
 
 use crate::equilibrium::azeotrope::{Azeotrope, AzeotropeOptions, azeotrope_at_pressure, azeotrope_at_temperature};
 use crate::equilibrium::nphase::{MultiphaseContext, MultiphaseOptions};

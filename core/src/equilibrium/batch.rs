@@ -95,9 +95,13 @@ pub fn run_len(layout: &BatchLayout, npts: usize, threads: usize) -> usize {
 /// [`NEAR_COMPOSITION`]. Non-finite or non-positive values are never near.
 pub fn near(ta: f64, pa: f64, za: &[f64], tb: f64, pb: f64, zb: &[f64]) -> bool {
     let rel = |a: f64, b: f64, tol: f64| a > 0.0 && b > 0.0 && (b - a).abs() <= tol * a.min(b);
-    if !(rel(ta, tb, NEAR_TEMPERATURE) && rel(pa, pb, NEAR_PRESSURE)) {
-        return false;
-    }
+    rel(ta, tb, NEAR_TEMPERATURE) && rel(pa, pb, NEAR_PRESSURE) && near_feed(za, zb)
+}
+
+/// Whether feed `zb` (amounts, mol) is near enough to feed `za` for a warm start: the same
+/// length, positive totals, and every mole fraction within [`NEAR_COMPOSITION`] (the feed
+/// part of [`near`]). A feed is always near itself (the same slice).
+pub fn near_feed(za: &[f64], zb: &[f64]) -> bool {
     if std::ptr::eq(za, zb) {
         return true;
     }

@@ -324,7 +324,7 @@ def calc_sweep(
     args: Sequence[_F64],
     amounts: Any,
     options_json: Optional[str] = None,
-    block: int = 64,
+    block: Optional[int] = None,
     threads: Optional[int] = None,
     progress: Optional[Any] = None,
     raise_errors: bool = True,

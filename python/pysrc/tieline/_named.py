@@ -22,7 +22,7 @@ def flash_sensitivities(
     pressure: Any,
     feed: Any,
     *,
-    block: int = 64,
+    block: Optional[int] = None,
     threads: Optional[int] = None,
     progress: Optional[Any] = None,
     on_error: str = "raise",
@@ -86,9 +86,10 @@ model : Model
 feed : array_like
     Feed amounts, mol (one row, or rows broadcast with the other inputs).
 block, threads, progress, on_error
-    Vectorised calls: points per warm-started block (each point starts from the previous
-    one's solution), thread count, a ``progress(done, total)`` callback, and ``"raise"`` or
-    ``"flag"`` for failed points.
+    Vectorised calls: points per block (default: 1/64 of the points, 16 to 64; each point
+    starts from the previous one's solution when the two are near, as in :func:`calculate`),
+    thread count, a ``progress(done, total)`` callback, and ``"raise"`` or ``"flag"`` for
+    failed points.
 **options
     ``tolerance`` (relative, on the specification; default 1e-10), ``max_iterations``,
     ``temperature_range`` and ``pressure_range`` (search ranges, K and Pa), and ``flash``
@@ -240,7 +241,7 @@ def flash_multiphase(
     pressure: Any,
     feed: Any,
     *,
-    block: int = 64,
+    block: Optional[int] = None,
     threads: Optional[int] = None,
     progress: Optional[Any] = None,
     on_error: str = "raise",

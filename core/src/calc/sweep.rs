@@ -301,37 +301,31 @@ mod tests {
         let n = t.len();
         let run = run_len(&BatchLayout::default(), n, 2);
         assert_eq!(run, block_len(n));
-        let mut forward = vec![None; n];
-        let mut backward = vec![None; n];
         let mut ws = Workspace::default();
-        for b in 0..n.div_ceil(run) {
-            let r = b * run..((b + 1) * run).min(n);
-            run_points(
-                &plan,
-                &mut ws,
-                &m,
-                &[&t, &p],
-                |i| &z[i],
-                r,
-                WarmStart::Near,
-                |i, x| forward[i] = Some(x),
-            )
-            .unwrap();
-        }
-        for b in (0..n.div_ceil(run)).rev() {
-            let r = b * run..((b + 1) * run).min(n);
-            run_points(
-                &plan,
-                &mut ws,
-                &m,
-                &[&t, &p],
-                |i| &z[i],
-                r,
-                WarmStart::Near,
-                |i, x| backward[i] = Some(x),
-            )
-            .unwrap();
-        }
+        let mut sweep = |reverse: bool| {
+            let mut out = vec![None; n];
+            let blocks: Vec<usize> = if reverse {
+                (0..n.div_ceil(run)).rev().collect()
+            } else {
+                (0..n.div_ceil(run)).collect()
+            };
+            for b in blocks {
+                let r = b * run..((b + 1) * run).min(n);
+                run_points(
+                    &plan,
+                    &mut ws,
+                    &m,
+                    &[&t, &p],
+                    |i| &z[i],
+                    r,
+                    WarmStart::Near,
+                    |i, x| out[i] = Some(x),
+                )
+                .unwrap();
+            }
+            out
+        };
+        let (forward, backward) = (sweep(false), sweep(true));
         assert_eq!(forward, backward);
 
         let ph = Plan::new("flash_ph", None).unwrap();

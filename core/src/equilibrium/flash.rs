@@ -670,6 +670,7 @@ impl FlashContext {
             RootChoice::Stable,
             &sopts,
             &[y],
+            false,
             &mut self.ws,
             &mut self.cert,
         )?;

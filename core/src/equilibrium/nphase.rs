@@ -1025,6 +1025,7 @@ impl Solver {
                 plan.root,
                 &sopts,
                 &known[..m],
+                self.np < plan.limit,
                 &mut self.ws,
                 &mut self.stab,
             );

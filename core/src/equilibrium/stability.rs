@@ -187,7 +187,9 @@ pub(crate) fn stability_on<M: FluidModel + ?Sized>(
 /// the phase itself (Michelsen & Mollerup 2007, ch. 10: near a zero of tm, tm ≈ β/2 with
 /// β = Σ (W_i − y_i)(ln W_i − ln y_i)), applied at y. The test's trials are those of `opts`;
 /// only the iterations that lead back to the set's own phases are saved. A known phase lacking
-/// a component present in the tested one is not used.
+/// a component present in the tested one is not used. With `stop_at_proof` (and
+/// `opts.early_exit`), a trial stops once it proves instability, as in
+/// [`stability_for_split`]: for a test whose negative point starts a larger phase set.
 #[allow(clippy::too_many_arguments)]
 pub(crate) fn stability_with_known<M: FluidModel + ?Sized>(
     model: &M,
@@ -197,10 +199,14 @@ pub(crate) fn stability_with_known<M: FluidModel + ?Sized>(
     root: RootChoice,
     opts: &StabilityOptions,
     known: &[&[f64]],
+    stop_at_proof: bool,
     ws: &mut EquilibriumWork,
     res: &mut StabilityResult,
 ) -> Result<()> {
-    stability_impl(model, t, p, n, root, opts, &[], known, ws, res)
+    ws.rough_stop = stop_at_proof && opts.early_exit;
+    let out = stability_impl(model, t, p, n, root, opts, &[], known, ws, res);
+    ws.rough_stop = false;
+    out
 }
 
 /// As [`stability_on`] (with `opts.early_exit`), for a feed whose split follows:
@@ -754,7 +760,19 @@ mod tests {
                 let mut ws = EquilibriumWork::new(6);
                 let mut res = StabilityResult::default();
                 let sopts = StabilityOptions::default();
-                stability_with_known(&m, t, 3e6, a, RootChoice::Stable, &sopts, &[b], &mut ws, &mut res).unwrap();
+                stability_with_known(
+                    &m,
+                    t,
+                    3e6,
+                    a,
+                    RootChoice::Stable,
+                    &sopts,
+                    &[b],
+                    false,
+                    &mut ws,
+                    &mut res,
+                )
+                .unwrap();
                 assert!(full.stable && res.stable, "phase of the split unstable at {t} K");
                 assert!(res.iterations <= full.iterations);
                 checked += 1;

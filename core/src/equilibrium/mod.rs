@@ -73,9 +73,6 @@ pub struct EquilibriumWork {
     pub(crate) chol: Vec<f64>,
     pub(crate) hist: [Vec<f64>; 3],
     pub(crate) trial_kinds: Vec<(stability::Trial, usize)>,
-    /// Set while a feed's stability test runs for the split that follows
-    /// (`stability::stability_for_split`): trials stop once they prove instability.
-    pub(crate) rough_stop: bool,
     /// Known stationary points of zero distance of a stability test (mole fractions, `nc`
     /// per point) and their logarithms.
     pub(crate) known: Vec<f64>,

@@ -177,7 +177,7 @@ pub(crate) fn stability_on<M: FluidModel + ?Sized>(
     ws: &mut EquilibriumWork,
     res: &mut StabilityResult,
 ) -> Result<()> {
-    stability_impl(model, t, p, n, root, opts, extra_trials, &[], ws, res)
+    stability_impl(model, t, p, n, root, opts, extra_trials, &[], false, ws, res)
 }
 
 /// As [`stability_on`], for a phase in equilibrium with other phases of mole fractions
@@ -203,10 +203,8 @@ pub(crate) fn stability_with_known<M: FluidModel + ?Sized>(
     ws: &mut EquilibriumWork,
     res: &mut StabilityResult,
 ) -> Result<()> {
-    ws.rough_stop = stop_at_proof && opts.early_exit;
-    let out = stability_impl(model, t, p, n, root, opts, &[], known, ws, res);
-    ws.rough_stop = false;
-    out
+    let rough = stop_at_proof && opts.early_exit;
+    stability_impl(model, t, p, n, root, opts, &[], known, rough, ws, res)
 }
 
 /// As [`stability_on`] (with `opts.early_exit`), for a feed whose split follows:
@@ -227,10 +225,7 @@ pub(crate) fn stability_for_split<M: FluidModel + ?Sized>(
     ws: &mut EquilibriumWork,
     res: &mut StabilityResult,
 ) -> Result<()> {
-    ws.rough_stop = opts.early_exit;
-    let out = stability_impl(model, t, p, n, root, opts, &[], &[], ws, res);
-    ws.rough_stop = false;
-    out
+    stability_with_known(model, t, p, n, root, opts, &[], true, ws, res)
 }
 
 #[allow(clippy::too_many_arguments)]
@@ -243,6 +238,7 @@ fn stability_impl<M: FluidModel + ?Sized>(
     opts: &StabilityOptions,
     extra_trials: &[&[f64]],
     known: &[&[f64]],
+    rough: bool,
     ws: &mut EquilibriumWork,
     res: &mut StabilityResult,
 ) -> Result<()> {
@@ -338,7 +334,7 @@ fn stability_impl<M: FluidModel + ?Sized>(
                 ws.w[i] = if ws.sz[i] > 0.0 { e[i].max(1e-12) } else { 0.0 };
             }
         }
-        let outcome = run_trial(model, t, p, root, opts, known, ws)?;
+        let outcome = run_trial(model, t, p, root, opts, known, rough, ws)?;
         res.iterations += outcome.iterations;
         match outcome.status {
             TrialStatus::Trivial => res.trivial_trials += 1,
@@ -467,6 +463,7 @@ struct TrialOutcome {
 
 /// Runs one trial from `ws.w`; on return `ws.w` holds the final W. `ws.known` and
 /// `ws.known_ln` hold `known` further stationary points of zero distance and their logarithms.
+/// With `rough`, a trial stops once it proves instability (tm < −1e-3, residual below 1e-3).
 fn run_trial<M: FluidModel + ?Sized>(
     model: &M,
     t: f64,
@@ -474,6 +471,7 @@ fn run_trial<M: FluidModel + ?Sized>(
     root: RootChoice,
     opts: &StabilityOptions,
     known: usize,
+    rough: bool,
     ws: &mut EquilibriumWork,
 ) -> Result<TrialOutcome> {
     let nc = ws.sz.len();
@@ -552,7 +550,7 @@ fn run_trial<M: FluidModel + ?Sized>(
                 }
             }
         }
-        if err < opts.tolerance || (ws.rough_stop && err < 1e-3 && tm < -1e-3) {
+        if err < opts.tolerance || (rough && err < 1e-3 && tm < -1e-3) {
             return Ok(outcome(TrialStatus::Converged));
         }
         // A trial that has settled next to a stationary point of clearly positive distance
